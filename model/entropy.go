@@ -1,0 +1,96 @@
+// Package model keeps exact, incrementally updated information measures of
+// a window of log records: per field the Shannon entropy H(F), per pair of
+// fields the joint entropy H(F,G), and from them, by the chain rule
+// H(F|G) = H(F,G) − H(G), conditional entropy and mutual information
+// I(F;G) = H(F) + H(G) − H(F,G). Units are bits (log base 2) throughout.
+//
+// # The estimator
+//
+// All figures are plug-in (maximum-likelihood) estimates over the records in
+// the window: for a table of counts c_i summing to N,
+//
+//	H = −Σ (c_i/N) log2(c_i/N) = log2 N − S/N,   S = Σ c_i log2 c_i.
+//
+// Each table keeps S, so a record entering or leaving the window changes H
+// in O(1): only the terms of the cells it touches change. S is kept in fixed
+// point (2^-30 bits per unit), so adding and removing the same records
+// returns exactly the same integer, with no floating-point drift however long
+// the stream: the incremental figures equal a recount bit for bit. The
+// rounding of each term is below 5e-10 bits, so H is within 5e-10·K/N of the
+// exact value for a table of K cells. Exactness holds while N·log2(N) stays
+// below 2^33 (windows of up to about 250 million records).
+//
+// The Miller–Madow value H + (K−1)/(2N ln 2) is given beside the plug-in
+// value: it removes the first-order bias that makes plug-in entropy too low
+// when there are few records per value.
+//
+// A record that lacks a field has, for that field, the value "absent", a
+// value of its own.
+package model
+
+import "math"
+
+// fixScale is the fixed-point scale of S: one unit is 2^-30 bit·records.
+const fixScale = 1 << 30
+
+const tableSize = 1 << 16
+
+// clogcTable[c] is round(c·log2(c)·fixScale) for small c.
+var clogcTable [tableSize]int64
+
+func init() {
+	for c := 2; c < tableSize; c++ {
+		clogcTable[c] = clogcSlow(int64(c))
+	}
+}
+
+func clogcSlow(c int64) int64 {
+	x := float64(c)
+	return int64(math.Round(x * math.Log2(x) * fixScale))
+}
+
+// clogc is c·log2(c) in fixed point (0 for c ≤ 1).
+func clogc(c int64) int64 {
+	if c < tableSize {
+		if c < 0 {
+			return 0
+		}
+		return clogcTable[c]
+	}
+	return clogcSlow(c)
+}
+
+// Entropy is the plug-in entropy in bits of a table of n records whose
+// Σ c·log2(c) is s (in fixed point).
+func entropyFromS(n int64, s int64) float64 {
+	if n <= 1 {
+		return 0
+	}
+	h := math.Log2(float64(n)) - float64(s)/fixScale/float64(n)
+	if h < 0 { // rounding on a constant table
+		return 0
+	}
+	return h
+}
+
+// MillerMadow is the Miller–Madow corrected entropy in bits of a plug-in
+// estimate h over n records in k non-empty cells.
+func MillerMadow(h float64, k, n int) float64 {
+	if n == 0 {
+		return 0
+	}
+	return h + float64(k-1)/(2*float64(n)*math.Ln2)
+}
+
+// EntropyOfCounts is the plug-in entropy in bits of a count vector, computed
+// directly: a reference for tests and for small tables built on the side.
+func EntropyOfCounts(counts []int) float64 {
+	var n, s int64
+	for _, c := range counts {
+		if c > 0 {
+			n += int64(c)
+			s += clogc(int64(c))
+		}
+	}
+	return entropyFromS(n, s)
+}

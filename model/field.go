@@ -1,0 +1,118 @@
+package model
+
+// absent is the value id of "this record lacks the field".
+const absent = 0
+
+// overflow is the value id given to values of an identifier field once it
+// holds MaxDistinct values: such values are no longer told apart, and the
+// field's figures become estimates (each overflow value is counted as seen
+// once).
+const overflow = ^uint32(0)
+
+// field holds the value table of one field over the window.
+//
+// Invariants: counts[id] is the number of window records whose value id for
+// this field is id (id ≥ 1); counts[0] is unused (absent records are
+// n − present); present == Σ counts[id≥1] + overflowed; distinct is the number
+// of ids with counts[id] > 0; s == Σ clogc(counts[id]); ids with a zero count
+// are on free and not in values.
+type field struct {
+	name    string
+	index   int
+	values  map[string]uint32
+	text    []string
+	counts  []int32
+	free    []uint32
+	present int64
+	// distinct counts ids in use, overflow values not included.
+	distinct      int64
+	overflowed    int64 // window records whose value is overflow
+	s             int64
+	valueBytes    int64 // Σ len(value) over window records with an interned value
+	overflowBytes int64 // Σ len(value) over window records with an overflow value
+
+	// tracked: the field is in pair tracking (pairs with it are kept).
+	tracked bool
+	// ident: the field is classified an identifier (with hysteresis).
+	ident bool
+}
+
+func newField(name string, index int) *field {
+	return &field{
+		name:   name,
+		index:  index,
+		values: make(map[string]uint32),
+		text:   []string{""},
+		counts: []int32{0},
+	}
+}
+
+// intern returns the id of value v, adding it if new, and counts one more
+// record with it.
+func (f *field) add(v []byte, maxDistinct int) uint32 {
+	id, ok := f.values[string(v)]
+	if !ok {
+		if f.ident && maxDistinct > 0 && int(f.distinct) >= maxDistinct {
+			f.overflowed++
+			f.present++
+			f.overflowBytes += int64(len(v))
+			return overflow
+		}
+		if n := len(f.free); n > 0 {
+			id = f.free[n-1]
+			f.free = f.free[:n-1]
+			f.text[id] = string(v)
+		} else {
+			id = uint32(len(f.text))
+			f.text = append(f.text, string(v))
+			f.counts = append(f.counts, 0)
+		}
+		f.values[f.text[id]] = id
+	}
+	c := f.counts[id]
+	if c == 0 {
+		f.distinct++
+	}
+	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.counts[id] = c + 1
+	f.present++
+	f.valueBytes += int64(len(f.text[id]))
+	return id
+}
+
+// remove counts one record fewer with value id, releasing the id when no
+// record in the window uses it any more.
+func (f *field) remove(id uint32) {
+	if id == overflow {
+		// Overflow values are not kept, so neither is their length: take
+		// off the mean.
+		l := f.overflowBytes / f.overflowed
+		f.overflowBytes -= l
+		f.overflowed--
+		f.present--
+		return
+	}
+	c := f.counts[id]
+	f.s += clogc(int64(c)-1) - clogc(int64(c))
+	f.counts[id] = c - 1
+	f.present--
+	f.valueBytes -= int64(len(f.text[id]))
+	if c == 1 {
+		f.distinct--
+		delete(f.values, f.text[id])
+		f.text[id] = ""
+		f.free = append(f.free, id)
+	}
+}
+
+// stats returns n-record figures: entropy (plug-in), cells (non-empty values
+// including absent) and whether they are estimates.
+func (f *field) entropy(n int64) (h float64, cells int64, estimate bool) {
+	a := n - f.present
+	s := f.s + clogc(a) // overflow values count once each: clogc(1) == 0
+	cells = f.distinct + f.overflowed
+	if a > 0 {
+		cells++
+	}
+	return entropyFromS(n, s), cells, f.overflowed > 0
+}

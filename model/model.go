@@ -1,0 +1,320 @@
+package model
+
+import (
+	"math"
+	"time"
+
+	"bitsift/parse"
+)
+
+// Options tune a Model. The zero value of a field means its default.
+type Options struct {
+	Window Window
+	// MaxFields caps how many field names are tracked at all; names past
+	// it are counted as left out (default 1024).
+	MaxFields int
+	// MaxPairFields caps how many fields are tracked in pairs (default 64):
+	// pair tables cost O(k²) per record.
+	MaxPairFields int
+	// MaxDistinct caps the values interned per identifier field; past it
+	// the field's distinct count and entropy are estimates (default 1<<20).
+	MaxDistinct int
+}
+
+func (o Options) withDefaults() Options {
+	if o.MaxFields <= 0 {
+		o.MaxFields = 1024
+	}
+	if o.MaxPairFields <= 0 {
+		o.MaxPairFields = 64
+	}
+	if o.MaxDistinct <= 0 {
+		o.MaxDistinct = 1 << 20
+	}
+	return o
+}
+
+// Identifier rule. A field is an identifier when, over at least
+// identMinPresent records that have it, it has at least identEnter distinct
+// values per record (at most two records per value on average); it stops
+// being one below identLeave. A field like that cannot reliably determine
+// anything (every field looks derived from a unique id), and its pair tables
+// would cost as much as the window itself, so it is left out of pairs.
+const (
+	identMinPresent = 32
+	identEnter      = 0.5
+	identLeave      = 0.35
+	reclassEvery    = 1024
+)
+
+// pair is the joint table of fields a < b (indices into Model.fields).
+// Cell keys are id(a)<<32 | id(b).
+type pair struct {
+	a, b int
+	m    *cellMap
+}
+
+// Model holds the window's records and every table over them. It is not
+// safe for concurrent use: one goroutine owns it and hands out Snapshots.
+type Model struct {
+	opt    Options
+	fields []*field
+	byName map[string]int
+	pairs  []pair
+	pairAt map[[2]int]int // (a,b) → index in pairs
+
+	st      store
+	seen    int64 // records ever added
+	maxTime int64
+
+	leftOut      map[string]struct{} // names past MaxFields (up to a cap)
+	leftOutCount int64               // records that had a left-out field
+
+	cur  []uint32
+	mark []uint32 // mark[i] == gen: field i was set in the current record
+	gen  uint32
+
+	sinceReclass int
+}
+
+// New returns an empty model.
+func New(opt Options) *Model {
+	return &Model{
+		opt:     opt.withDefaults(),
+		byName:  make(map[string]int),
+		pairAt:  make(map[[2]int]int),
+		leftOut: make(map[string]struct{}),
+	}
+}
+
+// Window is the window the model covers.
+func (m *Model) Window() Window { return m.opt.Window }
+
+// Len is the number of records in the window.
+func (m *Model) Len() int { return m.st.n }
+
+// Seen is the number of records ever added.
+func (m *Model) Seen() int64 { return m.seen }
+
+// Add takes one record into the window, evicting what the window no longer
+// covers. line is the record's line number in its source and t its time
+// (record time, else arrival time), in Unix nanoseconds.
+func (m *Model) Add(rec *parse.Record, line int64, t int64) {
+	m.gen++
+	if m.gen == 0 { // wrapped: old marks could collide
+		clear(m.mark)
+		m.gen = 1
+	}
+	clear(m.cur)
+	width := 0
+	for i := 0; i < rec.Len(); i++ {
+		key := rec.Key(i)
+		idx, ok := m.byName[string(key)]
+		if !ok {
+			idx = m.newField(string(key))
+			if idx < 0 {
+				continue
+			}
+		}
+		if m.mark[idx] == m.gen {
+			continue // a repeated key: the first one counts
+		}
+		m.mark[idx] = m.gen
+		m.cur[idx] = m.fields[idx].add(rec.Value(i), m.opt.MaxDistinct)
+		if idx >= width {
+			width = idx + 1
+		}
+	}
+	m.st.push(m.cur[:width], rowMeta{line: line, time: t})
+	for i := range m.pairs {
+		p := &m.pairs[i]
+		p.m.inc(uint64(m.cur[p.a])<<32 | uint64(m.cur[p.b]))
+	}
+	m.seen++
+	if t > m.maxTime {
+		m.maxTime = t
+	}
+	m.evict()
+	m.sinceReclass++
+	if m.sinceReclass >= reclassEvery {
+		m.sinceReclass = 0
+		m.reclassify()
+	}
+}
+
+func (m *Model) evict() {
+	switch m.opt.Window.Kind {
+	case WindowRecords:
+		for m.st.n > m.opt.Window.Records {
+			m.popOldest()
+		}
+	case WindowDuration:
+		d := m.opt.Window.Duration.Nanoseconds()
+		for m.st.n > 1 && m.maxTime-m.st.metaAt(0).time > d {
+			m.popOldest()
+		}
+		m.st.shrink()
+	}
+}
+
+// popOldest takes the oldest record off every table.
+func (m *Model) popOldest() {
+	row := m.st.row(0)
+	for i, id := range row {
+		if id != absent && i < len(m.fields) {
+			m.fields[i].remove(id)
+		}
+	}
+	for i := range m.pairs {
+		p := &m.pairs[i]
+		p.m.dec(uint64(idAt(row, p.a))<<32 | uint64(idAt(row, p.b)))
+	}
+	m.st.pop()
+}
+
+func idAt(row []uint32, i int) uint32 {
+	if i < len(row) {
+		return row[i]
+	}
+	return absent
+}
+
+// newField creates a field; every record already in the window lacks it.
+// It returns -1 when the field cap is reached.
+func (m *Model) newField(name string) int {
+	if len(m.fields) >= m.opt.MaxFields {
+		if len(m.leftOut) < 100000 {
+			m.leftOut[name] = struct{}{}
+		}
+		m.leftOutCount++
+		return -1
+	}
+	idx := len(m.fields)
+	f := newField(name, idx)
+	m.fields = append(m.fields, f)
+	m.byName[f.name] = idx
+	m.cur = append(m.cur, 0)
+	m.mark = append(m.mark, 0)
+	if m.trackedCount() < m.opt.MaxPairFields {
+		m.track(idx)
+	}
+	return idx
+}
+
+func (m *Model) trackedCount() int {
+	n := 0
+	for _, f := range m.fields {
+		if f.tracked {
+			n++
+		}
+	}
+	return n
+}
+
+// track starts pair tables between field idx and every tracked field,
+// filled from the window's records.
+func (m *Model) track(idx int) {
+	f := m.fields[idx]
+	if f.tracked {
+		return
+	}
+	f.tracked = true
+	var added []int
+	for j, g := range m.fields {
+		if j == idx || !g.tracked {
+			continue
+		}
+		a, b := min(idx, j), max(idx, j)
+		m.pairAt[[2]int{a, b}] = len(m.pairs)
+		m.pairs = append(m.pairs, pair{a: a, b: b, m: newCellMap()})
+		added = append(added, len(m.pairs)-1)
+	}
+	for r := 0; r < m.st.n && len(added) > 0; r++ {
+		row := m.st.row(r)
+		for _, pi := range added {
+			p := &m.pairs[pi]
+			p.m.inc(uint64(idAt(row, p.a))<<32 | uint64(idAt(row, p.b)))
+		}
+	}
+}
+
+// untrack drops the pair tables of field idx.
+func (m *Model) untrack(idx int) {
+	f := m.fields[idx]
+	if !f.tracked {
+		return
+	}
+	f.tracked = false
+	kept := m.pairs[:0]
+	for _, p := range m.pairs {
+		if p.a != idx && p.b != idx {
+			kept = append(kept, p)
+		}
+	}
+	clear(m.pairs[len(kept):])
+	m.pairs = kept
+	clear(m.pairAt)
+	for i, p := range m.pairs {
+		m.pairAt[[2]int{p.a, p.b}] = i
+	}
+}
+
+// reclassify applies the identifier rule with hysteresis, moving fields in
+// and out of pair tracking.
+func (m *Model) reclassify() {
+	for i, f := range m.fields {
+		ratio := float64(f.distinct+f.overflowed) / math.Max(1, float64(f.present))
+		switch {
+		case !f.ident && f.present >= identMinPresent && ratio >= identEnter:
+			f.ident = true
+			m.untrack(i)
+		case f.ident && f.overflowed == 0 && (ratio < identLeave || f.present == 0):
+			f.ident = false
+		}
+	}
+	for i, f := range m.fields {
+		if !f.ident && !f.tracked && m.trackedCount() < m.opt.MaxPairFields {
+			m.track(i)
+		}
+	}
+}
+
+// Flush reclassifies fields now rather than at the next multiple of
+// reclassEvery records; call it before a final snapshot.
+func (m *Model) Flush() {
+	m.sinceReclass = 0
+	m.reclassify()
+}
+
+// Rebuild recomputes every table from the window's records: a reference
+// for tests of the incremental updates.
+func (m *Model) Rebuild() *Model {
+	r := New(m.opt)
+	r.opt.Window = Window{Kind: WindowAll}
+	names := make([]string, len(m.fields))
+	for i, f := range m.fields {
+		names[i] = f.name
+	}
+	var rec parse.Record
+	for i := 0; i < m.st.n; i++ {
+		rec.Reset()
+		for j, id := range m.st.row(i) {
+			if id != absent && j < len(m.fields) {
+				rec.AddString(names[j], m.fields[j].text[id])
+			}
+		}
+		meta := m.st.metaAt(i)
+		r.Add(&rec, meta.line, meta.time)
+	}
+	// Fields that the window no longer holds, in the same order.
+	for _, n := range names {
+		if _, ok := r.byName[n]; !ok {
+			r.newField(n)
+		}
+	}
+	r.Flush()
+	return r
+}
+
+// now is a seam for tests.
+var now = time.Now

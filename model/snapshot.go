@@ -1,0 +1,298 @@
+package model
+
+import (
+	"math"
+	"sort"
+	"time"
+)
+
+// Kind is what a field is to the rest of the record.
+type Kind string
+
+// The kinds of field.
+const (
+	// Constant: one value over the window (absent counts as a value).
+	Constant Kind = "constant"
+	// Identifier: nearly every value is new (see the identifier rule).
+	Identifier Kind = "identifier"
+	// Derived: another field determines it (see Derived rule).
+	Derived Kind = "derived"
+	// Informative: the rest.
+	Informative Kind = "informative"
+)
+
+// Derived rule: F is derived from G when H(F|G) ≤ DerivedMaxResidual bits
+// and at most a tenth of H(F) (so a nearly constant F is not "derived" from
+// whatever), G is a tracked, non-identifier, non-constant field, and G has at
+// least DerivedMinPerValue records per value on average, so that chance
+// (one or two records per value of G) cannot explain the dependency.
+const (
+	DerivedMaxResidual = 0.01
+	DerivedMinPerValue = 8
+)
+
+// ValueCount is one value of a field and how many window records have it.
+type ValueCount struct {
+	Value  string
+	Count  int
+	Absent bool // the value is "the record lacks the field"
+}
+
+// FieldStats are the figures of one field over the window.
+type FieldStats struct {
+	Name      string
+	Kind      Kind
+	Present   int     // window records that have the field
+	Distinct  int     // distinct values, absent counted as one where it occurs
+	Entropy   float64 // plug-in, bits
+	EntropyMM float64 // Miller–Madow corrected, bits
+	Estimate  bool    // distinct and entropy are estimates (value cap reached)
+	// BytesPerRecord is the mean length of the field's key and value text
+	// per window record (records lacking it count as 0).
+	BytesPerRecord float64
+	// Tracked: pairs with this field are measured.
+	Tracked bool
+	// BestGiven is the tracked non-identifier field G ≠ F with the least
+	// H(F|G); "" when there is none. Residual is that H(F|G) and
+	// Uncertainty is Theil's U(F|G) = I(F;G)/H(F) (1 when H(F) is 0).
+	BestGiven   string
+	Residual    float64
+	Uncertainty float64
+	// Top holds the most frequent values, most frequent first.
+	Top []ValueCount
+}
+
+// Ceiling is log2 of the distinct count: the most entropy a field with that
+// many values could have.
+func (f *FieldStats) Ceiling() float64 {
+	if f.Distinct <= 1 {
+		return 0
+	}
+	return math.Log2(float64(f.Distinct))
+}
+
+// Snapshot is an immutable copy of the model's figures at one moment. It
+// shares nothing with the model.
+type Snapshot struct {
+	Taken   time.Time
+	Window  Window
+	Records int   // records in the window
+	Seen    int64 // records ever added
+	Fields  []FieldStats
+	// joint[i][j] is H(Fi,Fj) in bits for tracked pairs, NaN otherwise;
+	// i, j index Fields.
+	joint [][]float64
+	// LeftOutFields counts field names past the field cap, not tracked.
+	LeftOutFields int
+	// Oldest and Newest are the times of the window's first and last
+	// records (Unix ns; 0 when empty).
+	Oldest, Newest int64
+	// Input is filled by the caller that owns the stream.
+	Input Input
+}
+
+// Input describes where the records came from.
+type Input struct {
+	Sources    []string
+	Format     string
+	Confidence float64
+	Lines      int64 // lines read
+	Rejected   int64 // lines that are not records
+	// RejectedExamples holds the first rejected lines and why.
+	RejectedExamples []Rejection
+	// Faults are read errors that ended a source early.
+	Faults []string
+}
+
+// Rejection is one rejected line.
+type Rejection struct {
+	Line   int64  `json:"line"`
+	Source string `json:"source,omitempty"`
+	Reason string `json:"reason"`
+	Text   string `json:"text,omitempty"`
+}
+
+// Index returns the position of the named field in Fields, or -1.
+func (s *Snapshot) Index(name string) int {
+	for i := range s.Fields {
+		if s.Fields[i].Name == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// HasPair says whether the pair (i, j) is measured.
+func (s *Snapshot) HasPair(i, j int) bool {
+	return i != j && !math.IsNaN(s.joint[i][j])
+}
+
+// Joint is H(Fi,Fj) in bits (NaN when the pair is not measured).
+func (s *Snapshot) Joint(i, j int) float64 {
+	if i == j {
+		return s.Fields[i].Entropy
+	}
+	return s.joint[i][j]
+}
+
+// Cond is H(Fi|Fj) = H(Fi,Fj) − H(Fj) in bits.
+func (s *Snapshot) Cond(i, j int) float64 {
+	return nonNeg(s.Joint(i, j) - s.Fields[j].Entropy)
+}
+
+// Mutual is I(Fi;Fj) = H(Fi) + H(Fj) − H(Fi,Fj) in bits.
+func (s *Snapshot) Mutual(i, j int) float64 {
+	return nonNeg(s.Fields[i].Entropy + s.Fields[j].Entropy - s.Joint(i, j))
+}
+
+// nonNeg clears the rounding error of differences that are ≥ 0 in exact
+// arithmetic.
+func nonNeg(x float64) float64 {
+	if x < 1e-12 {
+		return 0
+	}
+	return x
+}
+
+// SnapshotOptions choose what a snapshot carries besides the figures.
+type SnapshotOptions struct {
+	TopValues int // values per field in Top (default 10; < 0: none)
+}
+
+// Snapshot copies out the current figures. It costs O(fields² + values).
+func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
+	if opt.TopValues == 0 {
+		opt.TopValues = 10
+	}
+	n := int64(m.st.n)
+	s := &Snapshot{
+		Taken:         now(),
+		Window:        m.opt.Window,
+		Records:       m.st.n,
+		Seen:          m.seen,
+		LeftOutFields: len(m.leftOut),
+	}
+	if m.st.n > 0 {
+		s.Oldest, s.Newest = m.st.metaAt(0).time, m.st.metaAt(m.st.n-1).time
+	}
+	s.Fields = make([]FieldStats, len(m.fields))
+	for i, f := range m.fields {
+		h, cells, est := f.entropy(n)
+		fs := &s.Fields[i]
+		fs.Name = f.name
+		fs.Present = int(f.present)
+		fs.Distinct = int(cells)
+		fs.Entropy = h
+		fs.EntropyMM = MillerMadow(h, int(cells), int(n))
+		fs.Estimate = est
+		fs.Tracked = f.tracked
+		if n > 0 {
+			fs.BytesPerRecord = float64(f.present*int64(len(f.name))+f.valueBytes+f.overflowBytes) / float64(n)
+		}
+		if opt.TopValues > 0 {
+			fs.Top = m.top(f, opt.TopValues)
+		}
+		switch {
+		case cells <= 1:
+			fs.Kind = Constant
+		case f.ident:
+			fs.Kind = Identifier
+		default:
+			fs.Kind = Informative
+		}
+	}
+	k := len(m.fields)
+	s.joint = make([][]float64, k)
+	flat := make([]float64, k*k)
+	for i := range s.joint {
+		s.joint[i] = flat[i*k : (i+1)*k]
+		for j := range s.joint[i] {
+			s.joint[i][j] = math.NaN()
+		}
+	}
+	for _, p := range m.pairs {
+		h := entropyFromS(n, p.m.s)
+		s.joint[p.a][p.b] = h
+		s.joint[p.b][p.a] = h
+	}
+	s.classify()
+	return s
+}
+
+// classify finds each field's best predictor and marks derived fields.
+func (s *Snapshot) classify() {
+	n := float64(s.Records)
+	for i := range s.Fields {
+		f := &s.Fields[i]
+		if f.Kind == Constant || !f.Tracked {
+			continue
+		}
+		best, bestRes := -1, math.Inf(1)
+		for j := range s.Fields {
+			g := &s.Fields[j]
+			if j == i || !s.HasPair(i, j) || g.Kind == Identifier || g.Kind == Constant {
+				continue
+			}
+			r := s.Cond(i, j)
+			// Prefer the smaller residual; among equal ones the simpler
+			// determinant (less entropy), then the name.
+			if r < bestRes-1e-12 || (math.Abs(r-bestRes) <= 1e-12 &&
+				(g.Entropy < s.Fields[best].Entropy-1e-12 ||
+					(math.Abs(g.Entropy-s.Fields[best].Entropy) <= 1e-12 && g.Name < s.Fields[best].Name))) {
+				best, bestRes = j, r
+			}
+		}
+		if best < 0 {
+			continue
+		}
+		f.BestGiven = s.Fields[best].Name
+		f.Residual = bestRes
+		if f.Entropy > 0 {
+			f.Uncertainty = s.Mutual(i, best) / f.Entropy
+		} else {
+			f.Uncertainty = 1
+		}
+		g := &s.Fields[best]
+		if f.Kind == Informative && bestRes <= DerivedMaxResidual && bestRes <= 0.1*f.Entropy &&
+			n/float64(g.Distinct) >= DerivedMinPerValue {
+			f.Kind = Derived
+		}
+	}
+}
+
+// top returns the most frequent values of f, absent included.
+func (m *Model) top(f *field, k int) []ValueCount {
+	out := make([]ValueCount, 0, k+1)
+	if a := int64(m.st.n) - f.present; a > 0 {
+		out = append(out, ValueCount{Count: int(a), Absent: true})
+	}
+	if f.overflowed > 0 {
+		// Overflow values are each counted once; there is nothing to list.
+	}
+	minKept := 0
+	for id, c := range f.counts {
+		if c == 0 || (len(out) >= k && int(c) <= minKept) {
+			continue
+		}
+		out = append(out, ValueCount{Value: f.text[id], Count: int(c)})
+		if len(out) > 2*k {
+			sortValues(out)
+			out = out[:k]
+			minKept = out[k-1].Count
+		}
+	}
+	sortValues(out)
+	if len(out) > k {
+		out = out[:k]
+	}
+	return out
+}
+
+func sortValues(v []ValueCount) {
+	sort.Slice(v, func(i, j int) bool {
+		if v[i].Count != v[j].Count {
+			return v[i].Count > v[j].Count
+		}
+		return v[i].Value < v[j].Value
+	})
+}

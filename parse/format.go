@@ -1,0 +1,122 @@
+package parse
+
+import (
+	"errors"
+	"fmt"
+	"sort"
+)
+
+// Format turns one line of text into a Record.
+//
+// Parse must not keep line after it returns, must not allocate per field in
+// the steady state (write keys and values into rec), and reports a line that
+// is not a record of this format with an error whose text is the reason, in
+// a few words, for the user (e.g. "unterminated quoted value").
+type Format interface {
+	// Name is the value of --format that selects this format.
+	Name() string
+	// Parse fills rec, which the caller has Reset, from line, which has no
+	// line ending.
+	Parse(line []byte, rec *Record) error
+	// Sniff scores how well line looks like this format, from 0 (not at
+	// all) to 1 (unmistakably). Detection sums it over the first lines.
+	Sniff(line []byte) float64
+}
+
+// ErrNotRecord is wrapped by Parse errors for lines that are not records.
+var ErrNotRecord = errors.New("not a record")
+
+// reject makes a Parse error with the given reason.
+func reject(reason string) error { return &RejectError{Reason: reason} }
+
+// RejectError says why a line is not a record.
+type RejectError struct{ Reason string }
+
+func (e *RejectError) Error() string { return e.Reason }
+
+// Unwrap lets callers test with errors.Is(err, ErrNotRecord).
+func (e *RejectError) Unwrap() error { return ErrNotRecord }
+
+var registry = map[string]func() Format{}
+
+// Register makes a format available to Detect and ByName. Formats register
+// themselves in init; a new format is one file plus its Register call.
+func Register(name string, make func() Format) {
+	if _, dup := registry[name]; dup {
+		panic("parse: format registered twice: " + name)
+	}
+	registry[name] = make
+}
+
+// Names lists the registered formats, sorted.
+func Names() []string {
+	names := make([]string, 0, len(registry))
+	for n := range registry {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// ByName returns a new instance of the named format.
+func ByName(name string) (Format, error) {
+	mk, ok := registry[name]
+	if !ok {
+		return nil, fmt.Errorf("parse: unknown format %q (known: %v)", name, Names())
+	}
+	return mk(), nil
+}
+
+// Detection is the outcome of Detect.
+type Detection struct {
+	Format     Format
+	Confidence float64 // mean Sniff score of the winner over the sample, 0..1
+}
+
+// Detect picks the format that best explains sample, the first lines of a
+// stream (blank lines are ignored). Ties go to the format registered under
+// the alphabetically first name, so detection is deterministic.
+func Detect(sample [][]byte) (Detection, error) {
+	best := Detection{}
+	bestName := ""
+	n := 0
+	for _, l := range sample {
+		if len(trimSpace(l)) > 0 {
+			n++
+		}
+	}
+	if n == 0 {
+		return best, errors.New("parse: no lines to detect a format from")
+	}
+	for _, name := range Names() {
+		f := registry[name]()
+		sum := 0.0
+		for _, l := range sample {
+			l = trimSpace(l)
+			if len(l) == 0 {
+				continue
+			}
+			sum += f.Sniff(l)
+		}
+		score := sum / float64(n)
+		if score > best.Confidence {
+			best = Detection{Format: f, Confidence: score}
+			bestName = name
+		}
+	}
+	if best.Format == nil {
+		return best, errors.New("parse: no known format matches the first lines (use --format)")
+	}
+	_ = bestName
+	return best, nil
+}
+
+func trimSpace(b []byte) []byte {
+	for len(b) > 0 && (b[0] == ' ' || b[0] == '\t' || b[0] == '\r') {
+		b = b[1:]
+	}
+	for len(b) > 0 && (b[len(b)-1] == ' ' || b[len(b)-1] == '\t' || b[len(b)-1] == '\r') {
+		b = b[:len(b)-1]
+	}
+	return b
+}

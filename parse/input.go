@@ -1,0 +1,165 @@
+package parse
+
+import (
+	"bufio"
+	"bytes"
+	"compress/gzip"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+
+	"github.com/klauspost/compress/zstd"
+)
+
+// DefaultMaxLine is the longest line accepted, in bytes; longer lines are
+// rejected with a reason and skipped in bounded memory.
+const DefaultMaxLine = 1 << 20
+
+// ErrLineTooLong is returned by Lines.Next for a line over the limit. The
+// line has been consumed; Next can be called again.
+var ErrLineTooLong = errors.New("line longer than --max-line")
+
+// Open opens a plain, gzip or zstd file for reading, telling compression by
+// its magic bytes rather than its name. "-" is standard input.
+func Open(path string) (io.ReadCloser, error) {
+	if path == "-" {
+		return Decompress(io.NopCloser(os.Stdin))
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, explainOpen(err)
+	}
+	rc, err := Decompress(f)
+	if err != nil {
+		f.Close()
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return rc, nil
+}
+
+func explainOpen(err error) error {
+	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return fmt.Errorf("%w (no such file)", err)
+	case errors.Is(err, os.ErrPermission):
+		return fmt.Errorf("%w (permission denied: check the file's mode or run as a user who may read it)", err)
+	}
+	return err
+}
+
+type readCloser struct {
+	io.Reader
+	close func() error
+}
+
+func (r readCloser) Close() error { return r.close() }
+
+// Decompress wraps rc in a gzip or zstd reader when its first bytes say so.
+func Decompress(rc io.ReadCloser) (io.ReadCloser, error) {
+	br := bufio.NewReaderSize(rc, 256<<10)
+	magic, _ := br.Peek(4)
+	switch {
+	case len(magic) >= 2 && magic[0] == 0x1f && magic[1] == 0x8b:
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return nil, fmt.Errorf("gzip: %w", err)
+		}
+		return readCloser{zr, func() error { zr.Close(); return rc.Close() }}, nil
+	case len(magic) == 4 && bytes.Equal(magic, []byte{0x28, 0xb5, 0x2f, 0xfd}):
+		zr, err := zstd.NewReader(br, zstd.WithDecoderConcurrency(1))
+		if err != nil {
+			return nil, fmt.Errorf("zstd: %w", err)
+		}
+		return readCloser{zr, func() error { zr.Close(); return rc.Close() }}, nil
+	}
+	return readCloser{br, rc.Close}, nil
+}
+
+// Lines splits a stream into lines, numbered from 1, without their line
+// endings (LF or CRLF). A last line without a newline is still a line.
+type Lines struct {
+	r       *bufio.Reader
+	max     int
+	n       int64
+	buf     []byte
+	Partial bool // the last line returned had no newline
+}
+
+// NewLines reads lines of at most max bytes from r (max <= 0: DefaultMaxLine).
+func NewLines(r io.Reader, max int) *Lines {
+	if max <= 0 {
+		max = DefaultMaxLine
+	}
+	return &Lines{r: bufio.NewReaderSize(r, 64<<10), max: max}
+}
+
+// Next returns the next line and its number. The slice is valid until the
+// next call. At the end it returns io.EOF; a read error is returned as is,
+// after every line before it.
+func (l *Lines) Next() ([]byte, int64, error) {
+	l.buf = l.buf[:0]
+	tooLong := false
+	for {
+		chunk, err := l.r.ReadSlice('\n')
+		if !tooLong {
+			if len(l.buf)+len(chunk) > l.max+2 { // +2: the line ending
+				tooLong = true
+				l.buf = l.buf[:0]
+			} else if err == nil && len(l.buf) == 0 {
+				// The common case: the whole line is in bufio's buffer.
+				l.n++
+				l.Partial = false
+				return trimEOL(chunk), l.n, l.check(chunk)
+			} else {
+				l.buf = append(l.buf, chunk...)
+			}
+		}
+		switch {
+		case err == nil:
+			l.n++
+			l.Partial = false
+			if tooLong {
+				return nil, l.n, ErrLineTooLong
+			}
+			return trimEOL(l.buf), l.n, l.check(l.buf)
+		case errors.Is(err, bufio.ErrBufferFull):
+			continue
+		case errors.Is(err, io.EOF):
+			if len(l.buf) == 0 && !tooLong {
+				return nil, l.n, io.EOF
+			}
+			l.n++
+			l.Partial = true
+			if tooLong {
+				return nil, l.n, ErrLineTooLong
+			}
+			return trimEOL(l.buf), l.n, l.check(l.buf)
+		default:
+			if len(l.buf) > 0 && !tooLong {
+				// Keep what came before the fault as a (partial) line.
+				l.n++
+				l.Partial = true
+				return trimEOL(l.buf), l.n, nil
+			}
+			return nil, l.n, err
+		}
+	}
+}
+
+func (l *Lines) check(line []byte) error {
+	if len(trimEOL(line)) > l.max {
+		return ErrLineTooLong
+	}
+	return nil
+}
+
+func trimEOL(b []byte) []byte {
+	if n := len(b); n > 0 && b[n-1] == '\n' {
+		b = b[:n-1]
+		if n := len(b); n > 0 && b[n-1] == '\r' {
+			b = b[:n-1]
+		}
+	}
+	return b
+}

@@ -1,0 +1,78 @@
+package parse
+
+// span locates one field of a Record inside its buffer: key is buf[k0:k1],
+// value is buf[v0:v1].
+type span struct{ k0, k1, v0, v1 int32 }
+
+// Record is one parsed log line: an ordered list of key/value pairs.
+//
+// Keys and values are copied into a buffer that the Record owns and reuses,
+// so a parser that fills the same Record line after line allocates nothing
+// once the buffer has grown to the longest line. Slices returned by Key and
+// Value are valid until the next Reset.
+type Record struct {
+	buf   []byte
+	spans []span
+}
+
+// Reset empties the record, keeping its buffers for reuse.
+func (r *Record) Reset() {
+	r.buf = r.buf[:0]
+	r.spans = r.spans[:0]
+}
+
+// Len is the number of fields in the record.
+func (r *Record) Len() int { return len(r.spans) }
+
+// Key is the name of field i.
+func (r *Record) Key(i int) []byte { s := r.spans[i]; return r.buf[s.k0:s.k1] }
+
+// Value is the value of field i, as text.
+func (r *Record) Value(i int) []byte { s := r.spans[i]; return r.buf[s.v0:s.v1] }
+
+// Add appends a field, copying key and value.
+func (r *Record) Add(key, value []byte) {
+	k0 := int32(len(r.buf))
+	r.buf = append(r.buf, key...)
+	v0 := int32(len(r.buf))
+	r.buf = append(r.buf, value...)
+	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
+}
+
+// AddString appends a field from strings.
+func (r *Record) AddString(key, value string) {
+	k0 := int32(len(r.buf))
+	r.buf = append(r.buf, key...)
+	v0 := int32(len(r.buf))
+	r.buf = append(r.buf, value...)
+	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
+}
+
+// begin starts a field whose key is key; the value is then appended to
+// r.buf by the caller and closed with end. It lets parsers unescape a value
+// straight into the record's buffer.
+func (r *Record) begin(key []byte) (k0, v0 int32) {
+	k0 = int32(len(r.buf))
+	r.buf = append(r.buf, key...)
+	return k0, int32(len(r.buf))
+}
+
+func (r *Record) end(k0, v0 int32) {
+	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
+}
+
+// Get returns the value of the first field named key.
+func (r *Record) Get(key string) ([]byte, bool) {
+	for i := range r.spans {
+		if string(r.Key(i)) == key {
+			return r.Value(i), true
+		}
+	}
+	return nil, false
+}
+
+// CopyFrom makes r a deep copy of o.
+func (r *Record) CopyFrom(o *Record) {
+	r.buf = append(r.buf[:0], o.buf...)
+	r.spans = append(r.spans[:0], o.spans...)
+}

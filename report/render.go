@@ -1,0 +1,174 @@
+package report
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"sort"
+	"strconv"
+	"strings"
+
+	"bitsift/sanitize"
+)
+
+// Formats lists the values of -o that Write accepts.
+var Formats = []string{"text", "json", "csv", "markdown"}
+
+// Write renders r in the named format.
+func Write(w io.Writer, r *Report, format string) error {
+	switch format {
+	case "", "text":
+		return WriteText(w, r)
+	case "json":
+		return WriteJSON(w, r)
+	case "csv":
+		return WriteCSV(w, r)
+	case "markdown", "md":
+		return WriteMarkdown(w, r)
+	}
+	return fmt.Errorf("report: unknown output format %q (use one of %s)", format, strings.Join(Formats, ", "))
+}
+
+// WriteJSON writes the report as indented JSON.
+func WriteJSON(w io.Writer, r *Report) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", " ")
+	return enc.Encode(r)
+}
+
+// WriteCSV writes one row per field.
+func WriteCSV(w io.Writer, r *Report) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"name", "kind", "present", "distinct", "entropy_bits", "entropy_mm_bits",
+		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient"})
+	for _, f := range r.Fields {
+		cw.Write([]string{f.Name, f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
+			num(f.Entropy), num(f.EntropyMM), strconv.FormatBool(f.Estimate), num(f.BytesPerRecord),
+			f.BestGiven, num(f.Residual), num(f.Uncertainty)})
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+func num(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+
+// Dependency is a strong "given G, F is (nearly) known" relation.
+type Dependency struct {
+	Target, Given string
+	Residual      float64 // H(target|given), bits
+	U             float64 // U(target|given)
+	Derived       bool
+}
+
+// Dependencies lists, for each non-constant field with a best predictor,
+// that relation, strongest (highest U) first.
+func (r *Report) Dependencies(limit int) []Dependency {
+	var out []Dependency
+	for _, f := range r.Fields {
+		if f.BestGiven == "" || f.Kind == "constant" || f.Uncertainty < 0.5 {
+			continue
+		}
+		out = append(out, Dependency{f.Name, f.BestGiven, f.Residual, f.Uncertainty, f.Kind == "derived"})
+	}
+	sort.SliceStable(out, func(i, j int) bool {
+		if out[i].U != out[j].U {
+			return out[i].U > out[j].U
+		}
+		return out[i].Target < out[j].Target
+	})
+	if limit > 0 && len(out) > limit {
+		out = out[:limit]
+	}
+	return out
+}
+
+// WriteText writes the report as a table readable at 80 columns. Every value
+// from the log is sanitised.
+func WriteText(w io.Writer, r *Report) error {
+	b := &strings.Builder{}
+	fmt.Fprintf(b, "bitsift: %d records in window %s", r.Records, windowText(r.Window))
+	if r.Input.Format != "" {
+		fmt.Fprintf(b, ", format %s (%.0f%% sure)", r.Input.Format, 100*r.Input.Confidence)
+	}
+	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected\n\n", r.Lines, r.Lines-r.Rejected, r.Rejected)
+	//            name     kind  bits  dist best  left B/rec
+	fmt.Fprintf(b, "%-20s %-11s %6s %8s  %-16s %6s %6s\n",
+		"FIELD", "KIND", "BITS", "DISTINCT", "BEST GIVEN", "LEFT", "B/REC")
+	for _, f := range r.Fields {
+		dist := strconv.Itoa(f.Distinct)
+		if f.Estimate {
+			dist = "~" + dist
+		}
+		best, left := "-", ""
+		if f.BestGiven != "" {
+			best, left = f.BestGiven, fmt.Sprintf("%.3f", f.Residual)
+		}
+		fmt.Fprintf(b, "%s %-11s %6.3f %8s  %s %6s %6.1f\n",
+			sanitize.Pad(f.Name, 20), f.Kind, f.Entropy, dist, sanitize.Pad(best, 16), left, f.BytesPerRecord)
+	}
+	b.WriteString("\nBITS: entropy H(F) per record; LEFT: bits of the field left once BEST GIVEN\nis known, H(F|G); B/REC: bytes of key and value per record.\n")
+	if deps := r.Dependencies(12); len(deps) > 0 {
+		b.WriteString("\nStrongest dependencies (U = share of the field's bits the other explains):\n")
+		for _, d := range deps {
+			mark := ""
+			if d.Derived {
+				mark = "  derived"
+			}
+			fmt.Fprintf(b, "  %s ← %s  U=%.3f  H(F|G)=%.3f bits%s\n",
+				sanitize.Fit(d.Target, 24), sanitize.Fit(d.Given, 24), d.U, d.Residual, mark)
+		}
+	}
+	if r.LeftOutFields > 0 {
+		fmt.Fprintf(b, "\n%d field names past the field cap were not tracked.\n", r.LeftOutFields)
+	}
+	if r.Rejected > 0 {
+		fmt.Fprintf(b, "\nRejected lines (first %d of %d):\n", len(r.RejectedExamples), r.Rejected)
+		for _, e := range r.RejectedExamples {
+			src := ""
+			if e.Source != "" && e.Source != "-" {
+				src = sanitize.Fit(e.Source, 24) + ":"
+			}
+			fmt.Fprintf(b, "  %s%d: %s", src, e.Line, e.Reason)
+			if e.Text != "" {
+				fmt.Fprintf(b, ": %s", sanitize.Fit(e.Text, 40))
+			}
+			b.WriteByte('\n')
+		}
+	}
+	for _, f := range r.Input.Faults {
+		fmt.Fprintf(b, "\nfault: %s\n", sanitize.String(f))
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+func windowText(w Window) string {
+	switch w.Kind {
+	case "records":
+		return fmt.Sprintf("last %v records", w.Size)
+	case "duration":
+		return fmt.Sprintf("last %v", w.Size)
+	}
+	return "all"
+}
+
+// WriteMarkdown writes the fields table as GitHub-flavoured Markdown.
+func WriteMarkdown(w io.Writer, r *Report) error {
+	b := &strings.Builder{}
+	fmt.Fprintf(b, "**bitsift**: %d records, %d rejected of %d lines, window %s\n\n",
+		r.Records, r.Rejected, r.Lines, windowText(r.Window))
+	b.WriteString("| field | kind | bits | distinct | best given | H(F\\|G) bits | B/record |\n")
+	b.WriteString("|---|---|--:|--:|---|--:|--:|\n")
+	for _, f := range r.Fields {
+		fmt.Fprintf(b, "| %s | %s | %.3f | %d | %s | %.3f | %.1f |\n",
+			md(f.Name), f.Kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
+	}
+	_, err := io.WriteString(w, b.String())
+	return err
+}
+
+func md(s string) string {
+	s = sanitize.String(s)
+	return strings.NewReplacer("|", `\|`, "*", `\*`, "_", `\_`, "`", "\\`", "<", "&lt;").Replace(s)
+}
