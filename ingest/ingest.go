@@ -8,7 +8,6 @@ import (
 	"bytes"
 	"context"
 	"errors"
-	"fmt"
 	"io"
 	"strings"
 	"time"
@@ -120,9 +119,13 @@ func excerpt(b []byte) string {
 	return strings.ToValidUTF8(string(b), string(utf8.RuneError))
 }
 
-// Fault records a read error that ended a source early.
+// Fault records a read error that ended an input early.
 func (in *Ingester) Fault(source string, err error) {
-	in.input.Faults = append(in.input.Faults, fmt.Sprintf("%s: %v", source, err))
+	msg := err.Error()
+	if source != "" {
+		msg = source + ": " + msg
+	}
+	in.input.Faults = append(in.input.Faults, msg)
 }
 
 // detect chooses the format from the pending lines and parses them.
@@ -132,10 +135,10 @@ func (in *Ingester) detect() {
 		sample[i] = p.text
 	}
 	d, err := parse.Detect(sample)
-	if err != nil {
-		// Nothing recognisable: fall back to logfmt, which rejects each
-		// line with its own reason, so nothing vanishes unexplained.
-		d.Format, d.Confidence = &parse.Logfmt{}, 0
+	if err != nil || d.Confidence == 0 {
+		// Nothing recognisable: every line is rejected with that reason,
+		// so nothing vanishes unexplained.
+		d.Format, d.Confidence = unknownFormat{}, 0
 	}
 	in.format, in.conf = d.Format, d.Confidence
 	in.input.Format, in.input.Confidence = d.Format.Name(), d.Confidence
@@ -186,56 +189,56 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 // TimeKey is the timestamp field found in the stream, "" if none.
 func (in *Ingester) TimeKey() string { return in.times.Key() }
 
-// ReadStream reads r to its end (or ctx's end) as lines of source.
-func (in *Ingester) ReadStream(ctx context.Context, r io.Reader, source string) error {
-	in.input.Sources = append(in.input.Sources, source)
-	lines := parse.NewLines(r, in.cfg.MaxLine)
-	for n := 0; ; n++ {
-		if n&1023 == 0 && ctx.Err() != nil {
-			return ctx.Err()
-		}
-		line, num, err := lines.Next()
+// Take takes one line from a Source.
+func (in *Ingester) Take(l parse.Line) {
+	if l.TooLong {
+		in.Reject(l.Num, l.Source, "line longer than --max-line")
+		return
+	}
+	in.Line(l.Text, l.Num, l.Source)
+}
+
+// ReadSource reads src to its end, or until ctx is done. It goes on past an
+// input that fails (a fault is recorded), and returns the first fault.
+func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
+	var first error
+	for {
+		l, err := src.Next(ctx)
 		switch {
 		case err == nil:
-			in.Line(line, num, source)
-		case errors.Is(err, parse.ErrLineTooLong):
-			in.Reject(num, source, "line longer than --max-line")
+			in.Take(l)
+			continue
 		case errors.Is(err, io.EOF):
-			return nil
-		default:
-			in.Fault(source, err)
-			return err
+			in.Flush()
+			return first
+		case ctx.Err() != nil:
+			in.Flush()
+			return ctx.Err()
+		}
+		in.Fault("", err)
+		if first == nil {
+			first = err
 		}
 	}
 }
 
-// ReadFiles reads each path in turn ("-" is standard input). It goes on past
-// a file that fails, and returns the first error with the name of its file.
+// ReadFiles reads each path in turn ("-" is standard input), plain, gzip
+// or zstd. It goes on past a file that fails, and returns the first fault.
 func (in *Ingester) ReadFiles(ctx context.Context, paths []string) error {
-	var first error
-	for _, p := range paths {
-		rc, err := parse.Open(p)
-		if err != nil {
-			in.Fault(p, err)
-			if first == nil {
-				first = err
-			}
-			continue
-		}
-		err = in.ReadStream(ctx, rc, p)
-		rc.Close()
-		if err != nil {
-			if errors.Is(err, context.Canceled) {
-				return err
-			}
-			if first == nil {
-				first = fmt.Errorf("%s: %w", p, err)
-			}
-		}
-	}
-	in.Flush()
-	return first
+	in.input.Sources = append(in.input.Sources, paths...)
+	src := parse.NewFileSource(paths, in.cfg.MaxLine)
+	defer src.Close()
+	return in.ReadSource(ctx, src)
 }
 
 // AddSource names a source whose lines are given with Line.
 func (in *Ingester) AddSource(name string) { in.input.Sources = append(in.input.Sources, name) }
+
+// unknownFormat rejects every line: the stream matched no known format.
+type unknownFormat struct{}
+
+func (unknownFormat) Name() string         { return "unknown" }
+func (unknownFormat) Sniff([]byte) float64 { return 0 }
+func (unknownFormat) Parse([]byte, *parse.Record) error {
+	return &parse.RejectError{Reason: "no known format matches this stream (use --format or --pattern)"}
+}

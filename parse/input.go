@@ -40,8 +40,6 @@ func Open(path string) (io.ReadCloser, error) {
 
 func explainOpen(err error) error {
 	switch {
-	case errors.Is(err, os.ErrNotExist):
-		return fmt.Errorf("%w (no such file)", err)
 	case errors.Is(err, os.ErrPermission):
 		return fmt.Errorf("%w (permission denied: check the file's mode or run as a user who may read it)", err)
 	}

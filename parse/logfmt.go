@@ -67,6 +67,7 @@ func (*Logfmt) Sniff(line []byte) float64 {
 func (*Logfmt) Parse(line []byte, rec *Record) error {
 	i := 0
 	n := len(line)
+	pairs := false
 	for {
 		for i < n && (line[i] == ' ' || line[i] == '\t') {
 			i++
@@ -92,6 +93,7 @@ func (*Logfmt) Parse(line []byte, rec *Record) error {
 			continue
 		}
 		i++ // '='
+		pairs = true
 		k0, v0 := rec.begin(key)
 		if i < n && line[i] == '"' {
 			i++
@@ -134,8 +136,8 @@ func (*Logfmt) Parse(line []byte, rec *Record) error {
 		}
 		rec.end(k0, v0)
 	}
-	if rec.Len() == 0 {
-		return reject("empty line")
+	if !pairs {
+		return reject("no key=value pair: not logfmt")
 	}
 	return nil
 }

@@ -1,0 +1,254 @@
+package parse
+
+import (
+	"context"
+	"errors"
+	"io"
+	"os"
+	"sync"
+	"time"
+)
+
+// Line is one line from a Source.
+type Line struct {
+	Text   []byte // without its line ending; valid until the next Next
+	Num    int64  // line number within its input, from 1
+	Source string // the input's name
+	// TooLong: the line was over the limit and Text is empty; it is to be
+	// counted as rejected.
+	TooLong bool
+}
+
+// Source is a stream of lines from one or more inputs: files read once, a
+// followed file, a paced replay, standard input.
+type Source interface {
+	// Next returns the next line. It blocks until one is ready, the
+	// source ends (io.EOF), or ctx is done (ctx.Err()). Any other error is
+	// a fault of the current input, after every line before it; Next may
+	// be called again to go on with the next input.
+	Next(ctx context.Context) (Line, error)
+	// Status describes the source now; safe to call from any goroutine.
+	Status() SourceStatus
+	// Close releases the source.
+	Close() error
+}
+
+// SourceState is what a source is doing.
+type SourceState string
+
+// Source states.
+const (
+	StateReading   SourceState = "reading"   // reading files once, as fast as it can
+	StateLive      SourceState = "live"      // following a live file or pipe
+	StateReplaying SourceState = "replaying" // replaying archives at a pace
+	StateWaiting   SourceState = "waiting"   // waiting for a file to appear
+	StateDone      SourceState = "done"      // every input read to its end
+)
+
+// SourceStatus describes a source at one moment.
+type SourceStatus struct {
+	Name       string
+	State      SourceState
+	BytesRead  int64 // compressed bytes, for compressed inputs
+	BytesTotal int64 // 0 when unknown (pipes, live files)
+	Lines      int64
+	Events     []SourceEvent
+	// Note is a short line for the user (e.g. "gap of 3m12s shortened").
+	Note string
+}
+
+// SourceEvent is something that happened to an input: rotation,
+// truncation, a missing file, a fault.
+type SourceEvent struct {
+	Time   time.Time
+	Kind   string // "rotated", "truncated", "missing", "appeared", "fault", ...
+	Detail string
+}
+
+// FileSource reads files (plain, .gz, .zst; "-" for stdin) once, in order.
+type FileSource struct {
+	paths   []string
+	maxLine int
+
+	cur   io.ReadCloser
+	lines *Lines
+	idx   int
+	name  string
+
+	mu     sync.Mutex
+	status SourceStatus
+	count  *countingReader
+}
+
+// NewFileSource reads paths in order with lines of at most maxLine bytes.
+func NewFileSource(paths []string, maxLine int) *FileSource {
+	fs := &FileSource{paths: paths, maxLine: maxLine}
+	fs.status.State = StateReading
+	if len(paths) == 1 {
+		fs.status.Name = paths[0]
+	} else {
+		fs.status.Name = pluralFiles(len(paths))
+	}
+	for _, p := range paths {
+		if p == "-" {
+			continue
+		}
+		if fi, err := os.Stat(p); err == nil {
+			fs.status.BytesTotal += fi.Size()
+		}
+	}
+	return fs
+}
+
+func pluralFiles(n int) string {
+	if n == 1 {
+		return "1 file"
+	}
+	return itoa(n) + " files"
+}
+
+func itoa(n int) string {
+	if n == 0 {
+		return "0"
+	}
+	var b [20]byte
+	i := len(b)
+	for n > 0 {
+		i--
+		b[i] = byte('0' + n%10)
+		n /= 10
+	}
+	return string(b[i:])
+}
+
+// Next implements Source.
+func (fs *FileSource) Next(ctx context.Context) (Line, error) {
+	for {
+		if err := ctx.Err(); err != nil {
+			return Line{}, err
+		}
+		if fs.lines == nil {
+			if fs.idx >= len(fs.paths) {
+				fs.setState(StateDone)
+				return Line{}, io.EOF
+			}
+			p := fs.paths[fs.idx]
+			fs.idx++
+			if err := fs.open(p); err != nil {
+				fs.event("fault", p+": "+err.Error())
+				return Line{}, &SourceError{Source: p, Err: err}
+			}
+		}
+		text, num, err := fs.lines.Next()
+		switch {
+		case err == nil:
+			fs.addLine()
+			return Line{Text: text, Num: num, Source: fs.name}, nil
+		case errors.Is(err, ErrLineTooLong):
+			fs.addLine()
+			return Line{Num: num, Source: fs.name, TooLong: true}, nil
+		case errors.Is(err, io.EOF):
+			fs.closeCur()
+		default:
+			name := fs.name
+			fs.event("fault", name+": "+err.Error())
+			fs.closeCur()
+			return Line{}, &SourceError{Source: name, Err: err, Offset: fs.count.n}
+		}
+	}
+}
+
+func (fs *FileSource) open(p string) error {
+	var raw io.ReadCloser
+	if p == "-" {
+		raw = io.NopCloser(os.Stdin)
+	} else {
+		f, err := os.Open(p)
+		if err != nil {
+			return explainOpen(err)
+		}
+		raw = f
+	}
+	fs.count = &countingReader{r: raw, fs: fs}
+	rc, err := Decompress(readCloser{fs.count, raw.Close})
+	if err != nil {
+		raw.Close()
+		return err
+	}
+	fs.cur, fs.name = rc, p
+	fs.lines = NewLines(rc, fs.maxLine)
+	return nil
+}
+
+func (fs *FileSource) closeCur() {
+	if fs.cur != nil {
+		fs.cur.Close()
+	}
+	fs.cur, fs.lines = nil, nil
+}
+
+func (fs *FileSource) addLine() {
+	fs.mu.Lock()
+	fs.status.Lines++
+	fs.mu.Unlock()
+}
+
+func (fs *FileSource) setState(s SourceState) {
+	fs.mu.Lock()
+	fs.status.State = s
+	fs.mu.Unlock()
+}
+
+func (fs *FileSource) event(kind, detail string) {
+	fs.mu.Lock()
+	fs.status.Events = append(fs.status.Events, SourceEvent{Time: time.Now(), Kind: kind, Detail: detail})
+	fs.mu.Unlock()
+}
+
+// Status implements Source.
+func (fs *FileSource) Status() SourceStatus {
+	fs.mu.Lock()
+	defer fs.mu.Unlock()
+	s := fs.status
+	s.Events = append([]SourceEvent(nil), s.Events...)
+	return s
+}
+
+// Close implements Source.
+func (fs *FileSource) Close() error {
+	fs.closeCur()
+	return nil
+}
+
+// SourceError is a fault of one input: it could not be opened, or reading
+// it failed at Offset (bytes of the file as stored).
+type SourceError struct {
+	Source string
+	Offset int64
+	Err    error
+}
+
+func (e *SourceError) Error() string {
+	if e.Offset > 0 {
+		return e.Source + ": at byte " + itoa(int(e.Offset)) + ": " + e.Err.Error()
+	}
+	return e.Source + ": " + e.Err.Error()
+}
+
+func (e *SourceError) Unwrap() error { return e.Err }
+
+// countingReader counts the bytes read from the stored file.
+type countingReader struct {
+	r  io.Reader
+	n  int64
+	fs *FileSource
+}
+
+func (c *countingReader) Read(p []byte) (int, error) {
+	n, err := c.r.Read(p)
+	c.n += int64(n)
+	c.fs.mu.Lock()
+	c.fs.status.BytesRead += int64(n)
+	c.fs.mu.Unlock()
+	return n, err
+}
