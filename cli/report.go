@@ -81,6 +81,7 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return err
 	}
+	cfg.Stdin = std.In
 	in, err := ingest.New(cfg)
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}

@@ -31,6 +31,8 @@ type Config struct {
 	Model   model.Options
 	// Clock gives arrival times for records without a timestamp.
 	Clock func() time.Time
+	// Stdin is what the path "-" reads (default os.Stdin).
+	Stdin io.Reader
 }
 
 // Ingester turns lines into model records.
@@ -227,6 +229,7 @@ func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 func (in *Ingester) ReadFiles(ctx context.Context, paths []string) error {
 	in.input.Sources = append(in.input.Sources, paths...)
 	src := parse.NewFileSource(paths, in.cfg.MaxLine)
+	src.Stdin = in.cfg.Stdin
 	defer src.Close()
 	return in.ReadSource(ctx, src)
 }

@@ -67,6 +67,9 @@ type SourceEvent struct {
 
 // FileSource reads files (plain, .gz, .zst; "-" for stdin) once, in order.
 type FileSource struct {
+	// Stdin is what "-" reads (default os.Stdin).
+	Stdin io.Reader
+
 	paths   []string
 	maxLine int
 
@@ -161,7 +164,11 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 func (fs *FileSource) open(p string) error {
 	var raw io.ReadCloser
 	if p == "-" {
-		raw = io.NopCloser(os.Stdin)
+		in := fs.Stdin
+		if in == nil {
+			in = os.Stdin
+		}
+		raw = io.NopCloser(in)
 	} else {
 		f, err := os.Open(p)
 		if err != nil {
