@@ -1,15 +1,23 @@
 package model
 
-// cellMap counts records per cell of a joint table: an open-addressing hash
-// map from a 64-bit cell key (two 32-bit value ids) to a count, with linear
-// probing and backward-shift deletion so that cells emptied by records
-// leaving the window free their slot. Written by hand because Go's map costs
-// about three times as much per update on this, the hottest loop of the
-// model, and cannot shrink.
+// cellMap counts records per cell of a joint table, keyed by two 32-bit
+// value ids (a<<32 | b).
 //
-// Invariant: a slot is empty iff its count is 0; len == the number of slots
-// with a count > 0; s == Σ clogc(count) over all slots.
+// While both ids stay small it is a dense matrix: an update is one indexed
+// add, no hashing. Once an id passes denseMaxSide (or the matrix would pass
+// denseMaxCells) it turns, for good, into an open-addressing hash map with
+// linear probing and backward-shift deletion, so that cells emptied by
+// records leaving the window free their slot. Written by hand because Go's
+// map costs several times as much per update on this, the hottest loop of
+// the model, and never shrinks.
+//
+// Invariant: len == the number of cells with a count > 0; s == Σ clogc(count)
+// over all cells. In hash mode a slot is empty iff its count is 0.
 type cellMap struct {
+	// dense mode: dense[a*dw+b] for a < dh, b < dw; nil in hash mode.
+	dense  []int32
+	dw, dh uint64
+
 	keys   []uint64
 	counts []int32
 	mask   uint64
@@ -18,10 +26,65 @@ type cellMap struct {
 	s      int64
 }
 
+const (
+	denseMaxSide  = 1 << 10
+	denseMaxCells = 1 << 14
+)
+
 func newCellMap() *cellMap {
-	m := &cellMap{}
-	m.alloc(16)
-	return m
+	return &cellMap{dense: make([]int32, 16), dw: 4, dh: 4}
+}
+
+// denseAt returns the dense slot of k, growing the matrix if k is near, or
+// -1 after switching to hash mode.
+func (m *cellMap) denseAt(k uint64) int {
+	a, b := k>>32, k&0xffffffff
+	if a < m.dh && b < m.dw {
+		return int(a*m.dw + b)
+	}
+	nw, nh := m.dw, m.dh
+	for b >= nw {
+		nw *= 2
+	}
+	for a >= nh {
+		nh *= 2
+	}
+	if nw > denseMaxSide || nh > denseMaxSide || nw*nh > denseMaxCells {
+		m.toHash()
+		return -1
+	}
+	d := make([]int32, nw*nh)
+	for i := uint64(0); i < m.dh; i++ {
+		copy(d[i*nw:], m.dense[i*m.dw:(i+1)*m.dw])
+	}
+	m.dense, m.dw, m.dh = d, nw, nh
+	return int(a*m.dw + b)
+}
+
+func (m *cellMap) toHash() {
+	d, dw := m.dense, m.dw
+	m.dense = nil
+	size := 16
+	for size*3 < m.len*4+4 {
+		size *= 2
+	}
+	m.alloc(size)
+	n := m.len
+	m.len = 0
+	for i, c := range d {
+		if c != 0 {
+			k := uint64(i)/dw<<32 | uint64(i)%dw
+			j := m.slot(k)
+			for m.counts[j] != 0 {
+				j = (j + 1) & m.mask
+			}
+			m.keys[j], m.counts[j] = k, c
+			m.len++
+		}
+	}
+	if m.len != n {
+		panic("model: cellMap lost cells turning into a hash map")
+	}
 }
 
 func (m *cellMap) alloc(size int) {
@@ -40,6 +103,17 @@ func (m *cellMap) slot(k uint64) uint64 {
 
 // inc adds one record to cell k.
 func (m *cellMap) inc(k uint64) {
+	if m.dense != nil {
+		if j := m.denseAt(k); j >= 0 {
+			c := m.dense[j]
+			if c == 0 {
+				m.len++
+			}
+			m.s += clogc(int64(c)+1) - clogc(int64(c))
+			m.dense[j] = c + 1
+			return
+		}
+	}
 	i := m.slot(k)
 	for {
 		c := m.counts[i]
@@ -66,6 +140,17 @@ func (m *cellMap) add(k uint64, n int32) {
 	if n <= 0 {
 		return
 	}
+	if m.dense != nil {
+		if j := m.denseAt(k); j >= 0 {
+			c := m.dense[j]
+			if c == 0 {
+				m.len++
+			}
+			m.s += clogc(int64(c)+int64(n)) - clogc(int64(c))
+			m.dense[j] = c + n
+			return
+		}
+	}
 	i := m.slot(k)
 	for {
 		c := m.counts[i]
@@ -90,6 +175,21 @@ func (m *cellMap) add(k uint64, n int32) {
 
 // dec removes one record from cell k, which must hold one.
 func (m *cellMap) dec(k uint64) {
+	if m.dense != nil {
+		j := m.denseAt(k)
+		if j >= 0 {
+			c := m.dense[j]
+			if c == 0 {
+				panic("model: cellMap.dec of an empty cell")
+			}
+			m.s += clogc(int64(c)-1) - clogc(int64(c))
+			m.dense[j] = c - 1
+			if c == 1 {
+				m.len--
+			}
+			return
+		}
+	}
 	i := m.slot(k)
 	for m.keys[i] != k || m.counts[i] == 0 {
 		if m.counts[i] == 0 {
@@ -124,6 +224,13 @@ func (m *cellMap) dec(k uint64) {
 
 // get returns the count of cell k.
 func (m *cellMap) get(k uint64) int32 {
+	if m.dense != nil {
+		a, b := k>>32, k&0xffffffff
+		if a < m.dh && b < m.dw {
+			return m.dense[a*m.dw+b]
+		}
+		return 0
+	}
 	i := m.slot(k)
 	for {
 		c := m.counts[i]
@@ -153,6 +260,14 @@ func (m *cellMap) grow() {
 
 // each calls f for every non-empty cell.
 func (m *cellMap) each(f func(k uint64, c int32)) {
+	if m.dense != nil {
+		for i, c := range m.dense {
+			if c != 0 {
+				f(uint64(i)/m.dw<<32|uint64(i)%m.dw, c)
+			}
+		}
+		return
+	}
 	for i, c := range m.counts {
 		if c != 0 {
 			f(m.keys[i], c)
@@ -161,4 +276,4 @@ func (m *cellMap) each(f func(k uint64, c int32)) {
 }
 
 // bytes is the memory the map holds.
-func (m *cellMap) bytes() int { return len(m.keys) * 12 }
+func (m *cellMap) bytes() int { return len(m.keys)*12 + len(m.dense)*4 }

@@ -28,34 +28,59 @@
 // value of its own.
 package model
 
-import "math"
+import (
+	"math"
+	"sync/atomic"
+)
 
 // fixScale is the fixed-point scale of S: one unit is 2^-30 bit·records.
 const fixScale = 1 << 30
 
-const tableSize = 1 << 16
+// The values c·log2(c) are looked up, not computed, for counts below
+// 1<<22: a log2 costs more than the rest of a table update. The table is
+// filled a chunk at a time as counts reach it, so memory follows the largest
+// count seen (8 bytes per count). Chunks are published atomically, so models
+// in different goroutines can share them.
+const (
+	chunkBits  = 16
+	chunkSize  = 1 << chunkBits
+	tableLimit = 1 << 22
+)
 
-// clogcTable[c] is round(c·log2(c)·fixScale) for small c.
-var clogcTable [tableSize]int64
+var clogcChunks [tableLimit / chunkSize]atomic.Pointer[[chunkSize]int64]
 
-func init() {
-	for c := 2; c < tableSize; c++ {
-		clogcTable[c] = clogcSlow(int64(c))
+func init() { clogcChunk(0) }
+
+func clogcChunk(i int64) *[chunkSize]int64 {
+	if p := clogcChunks[i].Load(); p != nil {
+		return p
 	}
+	t := new([chunkSize]int64)
+	for j := range t {
+		t[j] = clogcSlow(i<<chunkBits + int64(j))
+	}
+	clogcChunks[i].CompareAndSwap(nil, t)
+	return clogcChunks[i].Load()
 }
 
 func clogcSlow(c int64) int64 {
+	if c <= 1 {
+		return 0
+	}
 	x := float64(c)
 	return int64(math.Round(x * math.Log2(x) * fixScale))
 }
 
 // clogc is c·log2(c) in fixed point (0 for c ≤ 1).
 func clogc(c int64) int64 {
-	if c < tableSize {
-		if c < 0 {
-			return 0
-		}
-		return clogcTable[c]
+	if uint64(c) < chunkSize {
+		return clogcChunks[0].Load()[c]
+	}
+	if c < 0 {
+		return 0
+	}
+	if c < tableLimit {
+		return clogcChunk(c >> chunkBits)[c&(chunkSize-1)]
 	}
 	return clogcSlow(c)
 }

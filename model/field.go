@@ -1,5 +1,10 @@
 package model
 
+import "hash/maphash"
+
+// hashSeed keys the value hashes of identifier fields for this process.
+var hashSeed = maphash.MakeSeed()
+
 // absent is the value id of "this record lacks the field".
 const absent = 0
 
@@ -30,6 +35,18 @@ type field struct {
 	s             int64
 	valueBytes    int64 // Σ len(value) over window records with an interned value
 	overflowBytes int64 // Σ len(value) over window records with an overflow value
+	stale         int   // byHash entries whose id was freed since the last sweep
+
+	// byHash, when not nil, replaces values: the field is an identifier
+	// whose values are told apart by a 64-bit keyed hash and not kept as
+	// text (text is nil), lens[id] holding their lengths. This keeps a
+	// field of unique ids at about 30 bytes per window value instead of
+	// 100 or more. Two values collide with probability about n²/2^65 (3e-6
+	// for ten million values).
+	byHash map[uint64]uint32
+	lens   []int32
+	// samples holds the first few values of a hashed field, for display.
+	samples []string
 
 	// tracked: the field is in pair tracking (pairs with it are kept).
 	tracked bool
@@ -50,6 +67,9 @@ func newField(name string, index int) *field {
 // intern returns the id of value v, adding it if new, and counts one more
 // record with it.
 func (f *field) add(v []byte, maxDistinct int) uint32 {
+	if f.byHash != nil {
+		return f.addHashed(v, maxDistinct)
+	}
 	id, ok := f.values[string(v)]
 	if !ok {
 		if f.ident && maxDistinct > 0 && int(f.distinct) >= maxDistinct {
@@ -96,6 +116,20 @@ func (f *field) remove(id uint32) {
 	f.s += clogc(int64(c)-1) - clogc(int64(c))
 	f.counts[id] = c - 1
 	f.present--
+	if f.byHash != nil {
+		f.valueBytes -= int64(f.lens[id])
+		if c == 1 {
+			f.distinct--
+			f.free = append(f.free, id)
+			// The hash is not kept per id; it is found by a sweep of
+			// byHash when free ids pile up (see sweep).
+			f.stale++
+			if f.stale > 1024 && f.stale > len(f.byHash)/2 {
+				f.sweep()
+			}
+		}
+		return
+	}
 	f.valueBytes -= int64(len(f.text[id]))
 	if c == 1 {
 		f.distinct--
@@ -103,6 +137,84 @@ func (f *field) remove(id uint32) {
 		f.text[id] = ""
 		f.free = append(f.free, id)
 	}
+}
+
+// addHashed is add for a hashed field.
+func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
+	h := maphash.Bytes(hashSeed, v)
+	id, ok := f.byHash[h]
+	if ok && f.counts[id] == 0 {
+		ok = false // a stale entry: its id was freed (and maybe reused)
+	}
+	if !ok {
+		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
+			f.overflowed++
+			f.present++
+			f.overflowBytes += int64(len(v))
+			return overflow
+		}
+		if n := len(f.free); n > 0 {
+			id = f.free[n-1]
+			f.free = f.free[:n-1]
+		} else {
+			id = uint32(len(f.counts))
+			f.counts = append(f.counts, 0)
+			f.lens = append(f.lens, 0)
+		}
+		f.lens[id] = int32(len(v))
+		f.byHash[h] = id
+		if len(f.samples) < 3 {
+			f.samples = append(f.samples, string(v))
+		}
+	}
+	c := f.counts[id]
+	if c == 0 {
+		f.distinct++
+	}
+	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.counts[id] = c + 1
+	f.present++
+	f.valueBytes += int64(f.lens[id])
+	return id
+}
+
+// sweep drops byHash entries whose id is free or was reused by another
+// value. An entry h → id is live iff counts[id] > 0 and owner[id] == h.
+func (f *field) sweep() {
+	owner := make([]uint64, len(f.counts))
+	live := make([]bool, len(f.counts))
+	for h, id := range f.byHash {
+		if f.counts[id] > 0 {
+			owner[id], live[id] = h, true
+		}
+	}
+	fresh := make(map[uint64]uint32, f.distinct)
+	for h, id := range f.byHash {
+		if live[id] && owner[id] == h {
+			fresh[h] = id
+		}
+	}
+	f.byHash = fresh
+	f.stale = 0
+}
+
+// hashValues turns the field into a hashed one (see byHash), dropping the
+// text of its values.
+func (f *field) hashValues() {
+	if f.byHash != nil {
+		return
+	}
+	f.byHash = make(map[uint64]uint32, len(f.values))
+	f.lens = make([]int32, len(f.text))
+	for v, id := range f.values {
+		f.byHash[maphash.String(hashSeed, v)] = id
+		f.lens[id] = int32(len(v))
+		if len(f.samples) < 3 {
+			f.samples = append(f.samples, v)
+		}
+	}
+	f.text = nil // hashed fields keep no text: text[id] is never read
+	f.values = nil
 }
 
 // stats returns n-record figures: entropy (plug-in), cells (non-empty values

@@ -2,6 +2,7 @@ package model
 
 import (
 	"math"
+	"strconv"
 	"time"
 
 	"bitsift/parse"
@@ -72,6 +73,7 @@ type Model struct {
 
 	cur  []uint32
 	mark []uint32 // mark[i] == gen: field i was set in the current record
+	hint []int    // hint[i]: the field the i-th key of the last record named
 	gen  uint32
 
 	sinceReclass int
@@ -109,11 +111,24 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 	width := 0
 	for i := 0; i < rec.Len(); i++ {
 		key := rec.Key(i)
-		idx, ok := m.byName[string(key)]
-		if !ok {
-			idx = m.newField(string(key))
-			if idx < 0 {
-				continue
+		// Records of one stream mostly list their keys in the same order:
+		// try the field the i-th key was last time before hashing it.
+		var idx int
+		if i < len(m.hint) && m.hint[i] < len(m.fields) && m.fields[m.hint[i]].name == string(key) {
+			idx = m.hint[i]
+		} else {
+			var ok bool
+			idx, ok = m.byName[string(key)]
+			if !ok {
+				idx = m.newField(string(key))
+				if idx < 0 {
+					continue
+				}
+			}
+			if i < len(m.hint) {
+				m.hint[i] = idx
+			} else if i < 256 {
+				m.hint = append(m.hint, idx)
 			}
 		}
 		if m.mark[idx] == m.gen {
@@ -267,6 +282,7 @@ func (m *Model) reclassify() {
 		switch {
 		case !f.ident && f.present >= identMinPresent && ratio >= identEnter:
 			f.ident = true
+			f.hashValues()
 			m.untrack(i)
 		case f.ident && f.overflowed == 0 && (ratio < identLeave || f.present == 0):
 			f.ident = false
@@ -299,8 +315,15 @@ func (m *Model) Rebuild() *Model {
 	for i := 0; i < m.st.n; i++ {
 		rec.Reset()
 		for j, id := range m.st.row(i) {
-			if id != absent && j < len(m.fields) {
-				rec.AddString(names[j], m.fields[j].text[id])
+			if id != absent && id != overflow && j < len(m.fields) {
+				var v string
+				if m.fields[j].byHash != nil {
+					// Hashed values are equal iff their ids are.
+					v = "#" + strconv.Itoa(int(id))
+				} else {
+					v = m.fields[j].text[id]
+				}
+				rec.AddString(names[j], v)
 			}
 		}
 		meta := m.st.metaAt(i)

@@ -36,6 +36,9 @@ type ValueCount struct {
 	Value  string
 	Count  int
 	Absent bool // the value is "the record lacks the field"
+	// Sample: the field's values are not kept (an identifier); this is one
+	// of the first seen, and Count is not its count.
+	Sample bool
 }
 
 // FieldStats are the figures of one field over the window.
@@ -270,6 +273,14 @@ func (m *Model) top(f *field, k int) []ValueCount {
 		// Overflow values are each counted once; there is nothing to list.
 	}
 	minKept := 0
+	if f.byHash != nil {
+		// Values of a hashed identifier are not kept; show the first ones
+		// seen, which each occur about once.
+		for _, v := range f.samples {
+			out = append(out, ValueCount{Value: v, Count: 1, Sample: true})
+		}
+		return out
+	}
 	for id, c := range f.counts {
 		if c == 0 || (len(out) >= k && int(c) <= minKept) {
 			continue
