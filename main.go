@@ -14,6 +14,10 @@ import (
 )
 
 func main() {
+	// A closed pipe (bitsift report | head) then shows as EPIPE on write,
+	// which the commands treat as a quiet end, instead of killing the
+	// process.
+	signal.Ignore(syscall.SIGPIPE)
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	code := cli.Run(ctx, os.Args[1:], cli.IO{
 		In: os.Stdin, Out: os.Stdout, Err: os.Stderr,

@@ -16,9 +16,11 @@ import (
 
 // streamFlags are the flags every command that reads logs shares.
 type streamFlags struct {
-	format  string
-	window  string
-	maxLine int
+	format       string
+	window       string
+	maxLine      int
+	redact       bool
+	redactFields []string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -26,6 +28,8 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+"); detected when empty")
 	fs.StringVar(&f.window, "window", defaultWindow, `records the figures cover: "all", a count (50000, 50k) or a duration (5m)`)
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
+	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
+	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return parse.Names(), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -41,7 +45,8 @@ func (f *streamFlags) config() (ingest.Config, error) {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 		}
 	}
-	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w}}, nil
+	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w},
+		Redact: f.redact, RedactFields: f.redactFields}, nil
 }
 
 type reportCmd struct {

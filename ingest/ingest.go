@@ -33,6 +33,10 @@ type Config struct {
 	Clock func() time.Time
 	// Stdin is what the path "-" reads (default os.Stdin).
 	Stdin io.Reader
+	// Redact replaces values by keyed hashes at ingest (see Redactor):
+	// RedactFields names the fields, or every field when empty.
+	Redact       bool
+	RedactFields []string
 }
 
 // Ingester turns lines into model records.
@@ -43,6 +47,7 @@ type Ingester struct {
 	conf   float64
 	rec    parse.Record
 	times  parse.TimeFinder
+	redact *Redactor // nil: values are kept as they are
 
 	pending  []pendingLine // lines read before the format is known
 	nonBlank int           // non-blank lines in pending
@@ -62,6 +67,13 @@ func New(cfg Config) (*Ingester, error) {
 		cfg.Clock = time.Now
 	}
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
+	if cfg.Redact || len(cfg.RedactFields) > 0 {
+		r, err := NewRedactor(cfg.RedactFields)
+		if err != nil {
+			return nil, err
+		}
+		in.redact = r
+	}
 	if cfg.Format != "" {
 		f, err := parse.ByName(cfg.Format)
 		if err != nil {
@@ -105,6 +117,9 @@ func (in *Ingester) Reject(num int64, source, reason string) {
 
 func (in *Ingester) reject(num int64, source, reason string, text []byte) {
 	in.input.Rejected++
+	if in.redact != nil {
+		text = nil // a rejected line may hold the very values being hidden
+	}
 	if len(in.input.RejectedExamples) < keptRejections {
 		in.input.RejectedExamples = append(in.input.RejectedExamples, model.Rejection{
 			Line: num, Source: source, Reason: reason, Text: excerpt(text),
@@ -164,6 +179,9 @@ func (in *Ingester) parse(line []byte, num int64, source string) {
 	t, ok := in.times.Find(&in.rec)
 	if !ok {
 		t = in.cfg.Clock().UnixNano()
+	}
+	if in.redact != nil {
+		in.redact.Apply(&in.rec)
 	}
 	in.model.Add(&in.rec, num, t)
 }
