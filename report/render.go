@@ -123,16 +123,21 @@ func WriteText(w io.Writer, r *Report) error {
 		fmt.Fprintf(b, "\n%d field names past the field cap were not tracked.\n", r.LeftOutFields)
 	}
 	if r.Rejected > 0 {
-		fmt.Fprintf(b, "\nRejected lines (first %d of %d):\n", len(r.RejectedExamples), r.Rejected)
-		for _, e := range r.RejectedExamples {
-			src := ""
-			if e.Source != "" && e.Source != "-" {
-				src = sanitize.Fit(e.Source, 24) + ":"
+		shown := r.RejectedExamples
+		if len(shown) > 5 {
+			shown = shown[:5]
+		}
+		fmt.Fprintf(b, "\nRejected lines (first %d of %d; -o json lists %d):\n", len(shown), r.Rejected, len(r.RejectedExamples))
+		for _, e := range shown {
+			where := strconv.FormatInt(e.Line, 10)
+			if e.Source != "" && e.Source != "-" && len(r.Input.Sources) > 1 {
+				where = sanitize.Fit(e.Source, 20) + ":" + where
 			}
-			fmt.Fprintf(b, "  %s%d: %s", src, e.Line, e.Reason)
+			line := "  line " + where + ": " + e.Reason
 			if e.Text != "" {
-				fmt.Fprintf(b, ": %s", sanitize.Fit(e.Text, 40))
+				line += ": " + sanitize.String(e.Text)
 			}
+			b.WriteString(sanitize.Fit(line, 79))
 			b.WriteByte('\n')
 		}
 	}
