@@ -15,3 +15,8 @@ func FuzzRFC3164(f *testing.F) {
 	p := &RFC3164{}
 	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
 }
+
+func FuzzAccess(f *testing.F) {
+	p := &Access{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}

@@ -29,6 +29,13 @@ var timeParsers = []func(string) (int64, bool){
 		return t.UnixNano(), true
 	},
 	epochParser,
+	func(s string) (int64, bool) { // NCSA access log time
+		t, err := time.Parse("02/Jan/2006:15:04:05 -0700", s)
+		if err != nil {
+			return 0, false
+		}
+		return t.UnixNano(), true
+	},
 }
 
 // epochParser reads epoch seconds, milliseconds, microseconds or
