@@ -20,3 +20,32 @@ func FuzzAccess(f *testing.F) {
 	p := &Access{}
 	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
 }
+
+func FuzzCRI(f *testing.F) {
+	p := &CRI{}
+	f.Fuzz(func(t *testing.T, line []byte) {
+		fuzzParse(t, p, line)
+		var rec Record
+		for p.Flush(&rec) {
+			rec.Reset()
+		}
+	})
+}
+
+func FuzzDocker(f *testing.F) {
+	p := &Docker{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
+
+func FuzzPrefixed(f *testing.F) {
+	p := &Prefixed{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
+
+func FuzzPattern(f *testing.F) {
+	p, err := NewPattern(`^(?P<zone>[A-Z]) (?P<sensor>\w+)=(?P<value>[\d.]+)(?: (?P<unit>\S+))?$`)
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
