@@ -18,7 +18,7 @@ const maxJoined = DefaultMaxLine
 // stream, to the next F line of the same stream; the record takes the time
 // of its first part.
 type CRI struct {
-	open    [2]criPart // stdout, stderr
+	open  [2]criPart // stdout, stderr
 	inner inner
 }
 
