@@ -17,17 +17,19 @@ import (
 // streamFlags are the flags every command that reads logs shares.
 type streamFlags struct {
 	format  string
+	pattern string
 	window  string
 	maxLine int
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs := cmd.Flags()
-	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+"); detected when empty")
+	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+", pattern); detected when empty")
+	fs.StringVar(&f.pattern, "pattern", "", "Go regular expression with named groups, (?P<name>...): each group is a field (sets --format pattern)")
 	fs.StringVar(&f.window, "window", defaultWindow, `records the figures cover: "all", a count (50000, 50k) or a duration (5m)`)
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
-		return parse.Names(), cobra.ShellCompDirectiveNoFileComp
+		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
 }
 
@@ -36,12 +38,19 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	if err != nil {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
-	if f.format != "" {
+	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w}}
+	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 		}
 	}
-	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w}}, nil
+	if f.pattern != "" || f.format == "pattern" {
+		// Check the expression now, so that a bad one is a usage error.
+		if _, err := ingest.New(cfg); err != nil {
+			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
+		}
+	}
+	return cfg, nil
 }
 
 type reportCmd struct {

@@ -79,3 +79,38 @@ func TestAuthLogDataset(t *testing.T) {
 		}
 	}
 }
+
+// Templates on the shared datasets: a small set, stable along the stream
+// (the count over the first half against the whole), and readable. The
+// counts are measured and recorded in the test's log; the bounds are
+// generous, to catch a masking rule that stops working.
+func TestTemplatesOnDatasets(t *testing.T) {
+	for _, c := range []struct {
+		file, field string
+		max         int
+	}{
+		{"auth.log.gz", "msg~template", 150},
+		{"apache_logs.gz", "agent~template", 400},
+	} {
+		t.Run(c.file, func(t *testing.T) {
+			s := readDataset(t, c.file)
+			i := s.Index(c.field)
+			if i < 0 {
+				t.Fatalf("no %s", c.field)
+			}
+			f := s.Fields[i]
+			if f.Synthetic == nil {
+				t.Errorf("%s is not marked synthetic", c.field)
+			}
+			if f.Distinct > c.max {
+				t.Errorf("%d templates, want at most %d", f.Distinct, c.max)
+			}
+			src := s.Fields[s.Index(f.Synthetic.Source)]
+			t.Logf("%d templates for %d distinct %s values in %d records; H = %.3f bits (raw %.3f)",
+				f.Distinct, src.Distinct, src.Name, s.Records, f.Entropy, src.Entropy)
+			for _, v := range f.Top[:min(12, len(f.Top))] {
+				t.Logf("%6d  %s", v.Count, v.Value)
+			}
+		})
+	}
+}

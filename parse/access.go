@@ -47,7 +47,7 @@ func (*Access) Parse(line []byte, rec *Record) error {
 		if len(tok) == 0 || !more {
 			return reject("access log line does not start with HOST IDENT USER")
 		}
-		rec.addKV(key, tok)
+		rec.AddKV(key, tok)
 	}
 	if len(rest) == 0 || rest[0] != '[' {
 		return reject("no [time] in access log line")
@@ -56,7 +56,7 @@ func (*Access) Parse(line []byte, rec *Record) error {
 	if end < 0 {
 		return reject("unclosed [time] in access log line")
 	}
-	rec.addKV("time", rest[1:end])
+	rec.AddKV("time", rest[1:end])
 	rest = rest[end+1:]
 	if len(rest) < 2 || rest[0] != ' ' || rest[1] != '"' {
 		return reject(`no quoted request after the time`)
@@ -76,12 +76,12 @@ func (*Access) Parse(line []byte, rec *Record) error {
 	if len(rest) < 5 || rest[0] != ' ' || !allDigits(rest[1:4]) || rest[4] != ' ' {
 		return reject("status is not three digits")
 	}
-	rec.addKV("status", rest[1:4])
+	rec.AddKV("status", rest[1:4])
 	size, rest, more := token(rest[5:])
 	if len(size) == 0 || !(allDigits(size) || len(size) == 1 && size[0] == '-') {
 		return reject("bytes is neither a number nor -")
 	}
-	rec.addKV("bytes", size)
+	rec.AddKV("bytes", size)
 	if !more {
 		return nil
 	}
@@ -125,7 +125,7 @@ func quoted(b []byte) (v, rest []byte, ok bool) {
 // addUnescaped adds key=v with \" and \\ unescaped.
 func addUnescaped(rec *Record, key string, v []byte) {
 	if !hasBackslash(v) {
-		rec.addKV(key, v)
+		rec.AddKV(key, v)
 		return
 	}
 	k0, _ := rec.begin(nil)

@@ -93,8 +93,8 @@ func (c *CRI) Parse(line []byte, rec *Record) error {
 }
 
 func (c *CRI) fill(rec *Record, ts []byte, stream int, msg []byte) {
-	rec.addKV("time", ts)
-	rec.addKV("stream", streamNames[stream])
+	rec.AddKV("time", ts)
+	rec.AddKV("stream", streamNames[stream])
 	c.inner.add(rec, "log", msg, "time", "stream")
 }
 

@@ -26,7 +26,7 @@ func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool 
 		ok = in.logfmt.Parse(msg, &in.scratch) == nil
 	}
 	if !ok || in.scratch.Len() == 0 {
-		rec.addKV(key, msg)
+		rec.AddKV(key, msg)
 		return false
 	}
 	for i := 0; i < in.scratch.Len(); i++ {

@@ -55,7 +55,7 @@ func (p *Pattern) Parse(line []byte, rec *Record) error {
 		if p.names[g] == "" || p.loc[2*g] < 0 {
 			continue
 		}
-		rec.addKV(p.names[g], line[p.loc[2*g]:p.loc[2*g+1]])
+		rec.AddKV(p.names[g], line[p.loc[2*g]:p.loc[2*g+1]])
 	}
 	return nil
 }

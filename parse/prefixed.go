@@ -67,8 +67,8 @@ func (p *Prefixed) parse(line []byte, rec *Record) (structured bool, err error) 
 	for len(rest) > 0 && rest[0] == ' ' {
 		rest = rest[1:]
 	}
-	rec.addKV("time", ts)
-	rec.addKV("level", lv)
+	rec.AddKV("time", ts)
+	rec.AddKV("level", lv)
 	if len(rest) == 0 {
 		return false, nil
 	}

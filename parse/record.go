@@ -77,8 +77,9 @@ func (r *Record) CopyFrom(o *Record) {
 	r.spans = append(r.spans[:0], o.spans...)
 }
 
-// addKV appends a field whose key is a string, without converting it.
-func (r *Record) addKV(key string, value []byte) {
+// AddKV appends a field whose key is a string, copying both; it spares
+// callers a conversion (and its allocation) of either.
+func (r *Record) AddKV(key string, value []byte) {
 	k0 := int32(len(r.buf))
 	r.buf = append(r.buf, key...)
 	v0 := int32(len(r.buf))

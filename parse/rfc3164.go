@@ -56,9 +56,9 @@ func (*RFC3164) Parse(line []byte, rec *Record) error {
 	if len(rest) < 2 || rest[0] != ' ' || rest[1] == ' ' {
 		return reject("no host after the RFC 3164 timestamp")
 	}
-	rec.addKV("time", ts)
+	rec.AddKV("time", ts)
 	host, rest, more := token(rest[1:])
-	rec.addKV("host", host)
+	rec.AddKV("host", host)
 	if !more || len(rest) == 0 {
 		return nil
 	}
@@ -81,9 +81,9 @@ func (*RFC3164) Parse(line []byte, rec *Record) error {
 		}
 	}
 	if i > 0 && i < len(rest) && rest[i] == ':' && (i+1 == len(rest) || rest[i+1] == ' ') {
-		rec.addKV("app", rest[:tagEnd])
+		rec.AddKV("app", rest[:tagEnd])
 		if len(pid) > 0 {
-			rec.addKV("pid", pid)
+			rec.AddKV("pid", pid)
 		}
 		rest = rest[i+1:]
 		if len(rest) > 0 {
@@ -91,7 +91,7 @@ func (*RFC3164) Parse(line []byte, rec *Record) error {
 		}
 	}
 	if len(rest) > 0 {
-		rec.addKV("msg", rest)
+		rec.AddKV("msg", rest)
 	}
 	return nil
 }

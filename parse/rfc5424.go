@@ -72,7 +72,7 @@ func (p *RFC5424) Parse(line []byte, rec *Record) error {
 		msg = msg[3:]
 	}
 	if len(msg) > 0 {
-		rec.addKV("msg", msg)
+		rec.AddKV("msg", msg)
 	}
 	return nil
 }

@@ -56,5 +56,5 @@ func addUnlessNil(rec *Record, key string, value []byte) {
 	if len(value) == 1 && value[0] == '-' {
 		return
 	}
-	rec.addKV(key, value)
+	rec.AddKV(key, value)
 }

@@ -98,3 +98,13 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 	}
 	return 0, false
 }
+
+// IsTimeKey says whether name is one of the usual timestamp field names.
+func IsTimeKey(name string) bool {
+	for _, k := range timeKeys {
+		if k == name {
+			return true
+		}
+	}
+	return false
+}
