@@ -49,3 +49,13 @@ func FuzzPattern(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
 }
+
+func FuzzJSON(f *testing.F) {
+	p := &JSON{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
+
+func FuzzLogfmt(f *testing.F) {
+	p := &Logfmt{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
