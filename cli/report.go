@@ -17,6 +17,7 @@ import (
 // streamFlags are the flags every command that reads logs shares.
 type streamFlags struct {
 	format       string
+	pattern      string
 	window       string
 	maxLine      int
 	redact       bool
@@ -25,13 +26,14 @@ type streamFlags struct {
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs := cmd.Flags()
-	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+"); detected when empty")
+	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+", pattern); detected when empty")
+	fs.StringVar(&f.pattern, "pattern", "", "Go regular expression with named groups, (?P<name>...): each group is a field (sets --format pattern)")
 	fs.StringVar(&f.window, "window", defaultWindow, `records the figures cover: "all", a count (50000, 50k) or a duration (5m)`)
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
-		return parse.Names(), cobra.ShellCompDirectiveNoFileComp
+		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
 }
 
@@ -40,13 +42,20 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	if err != nil {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
-	if f.format != "" {
+	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
+		Redact: f.redact, RedactFields: f.redactFields}
+	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 		}
 	}
-	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields}, nil
+	if f.pattern != "" || f.format == "pattern" {
+		// Check the expression now, so that a bad one is a usage error.
+		if _, err := ingest.New(cfg); err != nil {
+			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
+		}
+	}
+	return cfg, nil
 }
 
 type reportCmd struct {

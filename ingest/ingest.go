@@ -8,6 +8,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"io"
 	"strings"
 	"time"
@@ -26,8 +27,11 @@ const keptRejections = 20
 
 // Config says how to read a stream.
 type Config struct {
-	Format  string // a parse format name; "" detects
-	MaxLine int    // longest line in bytes (0: parse.DefaultMaxLine)
+	Format string // a parse format name; "" detects
+	// Pattern is a Go regular expression with named groups (--pattern);
+	// it selects the format "pattern".
+	Pattern string
+	MaxLine int // longest line in bytes (0: parse.DefaultMaxLine)
 	Model   model.Options
 	// Clock gives arrival times for records without a timestamp.
 	Clock func() time.Time
@@ -37,6 +41,8 @@ type Config struct {
 	// RedactFields names the fields, or every field when empty.
 	Redact       bool
 	RedactFields []string
+	// NoCompanions turns off the fields bitsift adds (see companions.go).
+	NoCompanions bool
 }
 
 // Ingester turns lines into model records.
@@ -44,13 +50,21 @@ type Ingester struct {
 	cfg    Config
 	model  *model.Model
 	format parse.Format
+	joiner parse.Joiner // format, when its records may span lines
 	conf   float64
 	rec    parse.Record
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
+	comp   companions
 
-	pending  []pendingLine // lines read before the format is known
-	nonBlank int           // non-blank lines in pending
+	lastSource string // the input of the last line Take saw
+
+	// Until started, lines wait in pending: the format is detected from
+	// them and the companions chosen from their records.
+	started  bool
+	pending  []pendingLine
+	nonBlank int // non-blank lines in pending
+	lastNum  int64
 
 	input model.Input
 }
@@ -74,16 +88,35 @@ func New(cfg Config) (*Ingester, error) {
 		}
 		in.redact = r
 	}
-	if cfg.Format != "" {
-		f, err := parse.ByName(cfg.Format)
+	var f parse.Format
+	switch {
+	case cfg.Pattern != "":
+		if cfg.Format != "" && cfg.Format != "pattern" {
+			return nil, fmt.Errorf("ingest: --pattern reads lines with its own expression; drop --format %s", cfg.Format)
+		}
+		p, err := parse.NewPattern(cfg.Pattern)
 		if err != nil {
 			return nil, err
 		}
-		in.format, in.conf = f, 1
-		in.input.Format = f.Name()
-		in.input.Confidence = 1
+		f = p
+	case cfg.Format == "pattern":
+		return nil, errors.New("ingest: format pattern needs --pattern REGEX with named groups")
+	case cfg.Format != "":
+		var err error
+		if f, err = parse.ByName(cfg.Format); err != nil {
+			return nil, err
+		}
+	}
+	if f != nil {
+		in.setFormat(f, 1)
 	}
 	return in, nil
+}
+
+func (in *Ingester) setFormat(f parse.Format, conf float64) {
+	in.format, in.conf = f, conf
+	in.joiner, _ = f.(parse.Joiner)
+	in.input.Format, in.input.Confidence = f.Name(), conf
 }
 
 // Model is the model the Ingester feeds. Only the goroutine that owns the
@@ -94,7 +127,7 @@ func (in *Ingester) Model() *model.Model { return in.model }
 // be reused by the caller after Line returns.
 func (in *Ingester) Line(line []byte, num int64, source string) {
 	in.input.Lines++
-	if in.format == nil {
+	if !in.started {
 		in.pending = append(in.pending, pendingLine{bytes.Clone(line), num, source})
 		if len(bytes.TrimSpace(line)) > 0 {
 			in.nonBlank++
@@ -102,11 +135,13 @@ func (in *Ingester) Line(line []byte, num int64, source string) {
 		// Blank lines do not help detection; stop waiting for more after
 		// a while all the same.
 		if in.nonBlank >= detectLines || len(in.pending) >= 16*detectLines {
-			in.detect()
+			in.start()
 		}
 		return
 	}
-	in.parse(line, num, source)
+	if in.read(line, num, source) {
+		in.add(num)
+	}
 }
 
 // Reject counts a line that could not even be read as a line (too long).
@@ -145,53 +180,133 @@ func (in *Ingester) Fault(source string, err error) {
 	in.input.Faults = append(in.input.Faults, msg)
 }
 
-// detect chooses the format from the pending lines and parses them.
-func (in *Ingester) detect() {
-	sample := make([][]byte, len(in.pending))
-	for i, p := range in.pending {
-		sample[i] = p.text
+// start chooses the format (unless it was given) from the pending lines,
+// parses them, chooses the companions from their records, and takes them
+// into the model.
+func (in *Ingester) start() {
+	in.started = true
+	if in.format == nil {
+		sample := make([][]byte, len(in.pending))
+		for i, p := range in.pending {
+			sample[i] = p.text
+		}
+		d, err := parse.Detect(sample)
+		if err != nil || d.Confidence == 0 {
+			// Nothing recognisable: every line is rejected with that
+			// reason, so nothing vanishes unexplained.
+			d.Format, d.Confidence = unknownFormat{}, 0
+		}
+		in.setFormat(d.Format, d.Confidence)
 	}
-	d, err := parse.Detect(sample)
-	if err != nil || d.Confidence == 0 {
-		// Nothing recognisable: every line is rejected with that reason,
-		// so nothing vanishes unexplained.
-		d.Format, d.Confidence = unknownFormat{}, 0
-	}
-	in.format, in.conf = d.Format, d.Confidence
-	in.input.Format, in.input.Confidence = d.Format.Name(), d.Confidence
 	pending := in.pending
 	in.pending = nil
-	for _, p := range pending {
-		in.parse(p.text, p.num, p.source)
+	type sampled struct {
+		rec  parse.Record
+		num  int64
+		time int64
+	}
+	var recs []sampled
+	for i, p := range pending {
+		if i > 0 && p.source != pending[i-1].source && in.joiner != nil {
+			// Records left open by the previous source (as endSource,
+			// but into the sample).
+			for in.rec.Reset(); in.joiner.Flush(&in.rec); in.rec.Reset() {
+				in.input.Parts--
+				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime()})
+				recs[len(recs)-1].rec.CopyFrom(&in.rec)
+			}
+		}
+		if !in.read(p.text, p.num, p.source) {
+			continue
+		}
+		recs = append(recs, sampled{num: p.num, time: in.recTime()})
+		recs[len(recs)-1].rec.CopyFrom(&in.rec)
+	}
+	if !in.cfg.NoCompanions {
+		sample := make([]*parse.Record, len(recs))
+		for i := range recs {
+			sample[i] = &recs[i].rec
+		}
+		in.comp = chooseCompanions(sample)
+		in.comp.declare(in.model)
+		in.comp.warm(sample)
+	}
+	for i := range recs {
+		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
 	}
 }
 
-func (in *Ingester) parse(line []byte, num int64, source string) {
+// read parses one line into in.rec, counting it as a rejection or a record
+// part when it is one; it reports whether in.rec holds a record.
+func (in *Ingester) read(line []byte, num int64, source string) bool {
+	in.lastNum = num
 	if len(bytes.TrimSpace(line)) == 0 {
 		in.reject(num, source, "blank line", nil)
-		return
+		return false
 	}
 	in.rec.Reset()
-	if err := in.format.Parse(line, &in.rec); err != nil {
-		in.reject(num, source, err.Error(), line)
+	err := in.format.Parse(line, &in.rec)
+	switch {
+	case err == nil:
+		return true
+	case errors.Is(err, parse.ErrPart):
+		in.input.Parts++
+		return false
+	}
+	in.reject(num, source, err.Error(), line)
+	return false
+}
+
+// recTime is the time of the record in in.rec: its own, else arrival.
+func (in *Ingester) recTime() int64 {
+	if t, ok := in.times.Find(&in.rec); ok {
+		return t
+	}
+	return in.cfg.Clock().UnixNano()
+}
+
+// add takes the record in in.rec, read from line num, into the model.
+func (in *Ingester) add(num int64) {
+	in.commit(&in.rec, num, in.recTime())
+}
+
+// commit adds the companions to a parsed record, redacts it, and takes it
+// into the model.
+func (in *Ingester) commit(rec *parse.Record, num, t int64) {
+	in.comp.apply(rec)
+	if in.redact != nil {
+		// After the companions, so that templates are hashed too.
+		in.redact.Apply(rec)
+	}
+	in.model.Add(rec, num, t)
+}
+
+// endSource closes records left open at the end of a source (CRI partial
+// lines with no final part): each becomes a record, and its last part is
+// counted as the record instead.
+func (in *Ingester) endSource() {
+	if in.joiner == nil {
 		return
 	}
-	t, ok := in.times.Find(&in.rec)
-	if !ok {
-		t = in.cfg.Clock().UnixNano()
+	for {
+		in.rec.Reset()
+		if !in.joiner.Flush(&in.rec) {
+			return
+		}
+		in.input.Parts--
+		in.add(in.lastNum)
 	}
-	if in.redact != nil {
-		in.redact.Apply(&in.rec)
-	}
-	in.model.Add(&in.rec, num, t)
 }
 
 // Flush parses lines still waiting for format detection (a stream shorter
 // than the detection sample) and brings the model's classification up to
 // date.
 func (in *Ingester) Flush() {
-	if in.format == nil && len(in.pending) > 0 {
-		in.detect()
+	if !in.started && len(in.pending) > 0 {
+		in.start()
+	}
+	if in.started {
+		in.endSource()
 	}
 	in.model.Flush()
 }
@@ -211,6 +326,13 @@ func (in *Ingester) TimeKey() string { return in.times.Key() }
 
 // Take takes one line from a Source.
 func (in *Ingester) Take(l parse.Line) {
+	if l.Source != in.lastSource {
+		// A record split over lines does not run on into the next input.
+		if in.started && in.lastSource != "" {
+			in.endSource()
+		}
+		in.lastSource = l.Source
+	}
 	if l.TooLong {
 		in.Reject(l.Num, l.Source, "line longer than --max-line")
 		return

@@ -52,6 +52,8 @@ type field struct {
 	tracked bool
 	// ident: the field is classified an identifier (with hysteresis).
 	ident bool
+	// synth is set for a field bitsift makes from another (a companion).
+	synth *Synthetic
 }
 
 func newField(name string, index int) *field {

@@ -77,6 +77,9 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+
+	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
+	synthetic map[string]Synthetic
 }
 
 // New returns an empty model.
@@ -206,6 +209,9 @@ func (m *Model) newField(name string) int {
 	}
 	idx := len(m.fields)
 	f := newField(name, idx)
+	if s, ok := m.synthetic[name]; ok {
+		f.synth = &s
+	}
 	m.fields = append(m.fields, f)
 	m.byName[f.name] = idx
 	m.cur = append(m.cur, 0)
@@ -307,6 +313,9 @@ func (m *Model) Flush() {
 func (m *Model) Rebuild() *Model {
 	r := New(m.opt)
 	r.opt.Window = Window{Kind: WindowAll}
+	for n, s := range m.synthetic {
+		r.DeclareSynthetic(n, s)
+	}
 	names := make([]string, len(m.fields))
 	for i, f := range m.fields {
 		names[i] = f.name

@@ -63,6 +63,9 @@ type FieldStats struct {
 	Uncertainty float64
 	// Top holds the most frequent values, most frequent first.
 	Top []ValueCount
+	// Synthetic is set for a field that bitsift made from another field
+	// (a companion), which is not in the log itself.
+	Synthetic *Synthetic
 }
 
 // Ceiling is log2 of the distinct count: the most entropy a field with that
@@ -105,6 +108,9 @@ type Input struct {
 	RejectedExamples []Rejection
 	// Faults are read errors that ended a source early.
 	Faults []string
+	// Parts counts lines held as parts of a record joined from several
+	// lines (CRI partial lines): Lines == records + Rejected + Parts.
+	Parts int64
 }
 
 // Rejection is one rejected line.
@@ -189,6 +195,10 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 		fs.EntropyMM = MillerMadow(h, int(cells), int(n))
 		fs.Estimate = est
 		fs.Tracked = f.tracked
+		if f.synth != nil {
+			sy := *f.synth
+			fs.Synthetic = &sy
+		}
 		if n > 0 {
 			fs.BytesPerRecord = float64(f.present*int64(len(f.name))+f.valueBytes+f.overflowBytes) / float64(n)
 		}

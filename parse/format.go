@@ -26,6 +26,23 @@ type Format interface {
 // ErrNotRecord is wrapped by Parse errors for lines that are not records.
 var ErrNotRecord = errors.New("not a record")
 
+// ErrPart is returned by a Joiner's Parse for a line that it holds as a part
+// of a record that a later line completes. Such a line is neither a record
+// nor a rejection: ingest counts it as a record part, so that lines read =
+// records + rejected + parts stays exact.
+var ErrPart = errors.New("line held as part of a record joined from several lines")
+
+// Joiner is a Format whose records may span several lines, such as CRI
+// partial lines. Its Parse returns ErrPart for the lines it holds and a
+// record on the line that completes one.
+type Joiner interface {
+	Format
+	// Flush fills rec with the record still open at the end of a stream
+	// and reports whether there was one. Its last part then counts as the
+	// record rather than as a part.
+	Flush(rec *Record) bool
+}
+
 // reject makes a Parse error with the given reason.
 func reject(reason string) error { return &RejectError{Reason: reason} }
 

@@ -76,3 +76,25 @@ func (r *Record) CopyFrom(o *Record) {
 	r.buf = append(r.buf[:0], o.buf...)
 	r.spans = append(r.spans[:0], o.spans...)
 }
+
+// AddKV appends a field whose key is a string, copying both; it spares
+// callers a conversion (and its allocation) of either.
+func (r *Record) AddKV(key string, value []byte) {
+	k0 := int32(len(r.buf))
+	r.buf = append(r.buf, key...)
+	v0 := int32(len(r.buf))
+	r.buf = append(r.buf, value...)
+	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
+}
+
+// mark is a point in a record to roll back to.
+type mark struct{ buf, spans int }
+
+// mark returns the record's current end.
+func (r *Record) mark() mark { return mark{len(r.buf), len(r.spans)} }
+
+// rollback drops every field added after m.
+func (r *Record) rollback(m mark) {
+	r.buf = r.buf[:m.buf]
+	r.spans = r.spans[:m.spans]
+}

@@ -29,6 +29,23 @@ var timeParsers = []func(string) (int64, bool){
 		return t.UnixNano(), true
 	},
 	epochParser,
+	func(s string) (int64, bool) { // date and time with a space, as prefixed lines write them
+		t, err := time.Parse("2006-01-02 15:04:05Z07:00", s)
+		if err != nil {
+			t, err = time.Parse("2006-01-02 15:04:05", s)
+		}
+		if err != nil {
+			return 0, false
+		}
+		return t.UnixNano(), true
+	},
+	func(s string) (int64, bool) { // NCSA access log time
+		t, err := time.Parse("02/Jan/2006:15:04:05 -0700", s)
+		if err != nil {
+			return 0, false
+		}
+		return t.UnixNano(), true
+	},
 }
 
 // epochParser reads epoch seconds, milliseconds, microseconds or
@@ -80,4 +97,14 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 		}
 	}
 	return 0, false
+}
+
+// IsTimeKey says whether name is one of the usual timestamp field names.
+func IsTimeKey(name string) bool {
+	for _, k := range timeKeys {
+		if k == name {
+			return true
+		}
+	}
+	return false
 }

@@ -41,11 +41,11 @@ func WriteJSON(w io.Writer, r *Report) error {
 func WriteCSV(w io.Writer, r *Report) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"name", "kind", "present", "distinct", "entropy_bits", "entropy_mm_bits",
-		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient"})
+		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient", "synthetic"})
 	for _, f := range r.Fields {
 		cw.Write([]string{f.Name, f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
 			num(f.Entropy), num(f.EntropyMM), strconv.FormatBool(f.Estimate), num(f.BytesPerRecord),
-			f.BestGiven, num(f.Residual), num(f.Uncertainty)})
+			f.BestGiven, num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic)})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -91,7 +91,11 @@ func WriteText(w io.Writer, r *Report) error {
 	if r.Input.Format != "" {
 		fmt.Fprintf(b, ", format %s (%.0f%% sure)", r.Input.Format, 100*r.Input.Confidence)
 	}
-	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected\n\n", r.Lines, r.Lines-r.Rejected, r.Rejected)
+	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected", r.Lines, r.Lines-r.Rejected-r.Parts, r.Rejected)
+	if r.Parts > 0 {
+		fmt.Fprintf(b, ", %d joined to the line after them", r.Parts)
+	}
+	b.WriteString("\n\n")
 	//            name     kind  bits  dist best  left B/rec
 	fmt.Fprintf(b, "%-20s %-11s %6s %8s  %-16s %6s %6s\n",
 		"FIELD", "KIND", "BITS", "DISTINCT", "BEST GIVEN", "LEFT", "B/REC")
@@ -108,6 +112,7 @@ func WriteText(w io.Writer, r *Report) error {
 			sanitize.Pad(f.Name, 20), f.Kind, f.Entropy, dist, sanitize.Pad(best, 16), left, f.BytesPerRecord)
 	}
 	b.WriteString("\nBITS: entropy H(F) per record; LEFT: bits of the field left once BEST GIVEN\nis known, H(F|G); B/REC: bytes of key and value per record.\n")
+	writeSynthetic(b, r)
 	if deps := r.Dependencies(12); len(deps) > 0 {
 		b.WriteString("\nStrongest dependencies (U = share of the field's bits the other explains):\n")
 		for _, d := range deps {
@@ -148,6 +153,22 @@ func WriteText(w io.Writer, r *Report) error {
 	return err
 }
 
+// writeSynthetic lists the fields bitsift made, so that no one takes them
+// for fields of the log.
+func writeSynthetic(b *strings.Builder, r *Report) {
+	first := true
+	for _, f := range r.Fields {
+		if !f.Synthetic {
+			continue
+		}
+		if first {
+			b.WriteString("\nderived_by_bitsift (not in the log; made from another field):\n")
+			first = false
+		}
+		fmt.Fprintf(b, "  %s ← %s: %s\n", sanitize.Fit(f.Name, 28), sanitize.Fit(f.DerivedFrom, 20), f.DerivedBy)
+	}
+}
+
 func windowText(w Window) string {
 	switch w.Kind {
 	case "records":
@@ -163,11 +184,20 @@ func WriteMarkdown(w io.Writer, r *Report) error {
 	b := &strings.Builder{}
 	fmt.Fprintf(b, "**bitsift**: %d records, %d rejected of %d lines, window %s\n\n",
 		r.Records, r.Rejected, r.Lines, windowText(r.Window))
+	synth := false
 	b.WriteString("| field | kind | bits | distinct | best given | H(F\\|G) bits | B/record |\n")
 	b.WriteString("|---|---|--:|--:|---|--:|--:|\n")
 	for _, f := range r.Fields {
+		name := md(f.Name)
+		if f.Synthetic {
+			name += " †"
+			synth = true
+		}
 		fmt.Fprintf(b, "| %s | %s | %.3f | %d | %s | %.3f | %.1f |\n",
-			md(f.Name), f.Kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
+			name, f.Kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
+	}
+	if synth {
+		b.WriteString("\n† derived by bitsift from another field, not in the log.\n")
 	}
 	_, err := io.WriteString(w, b.String())
 	return err

@@ -16,10 +16,13 @@ const Schema = "bitsift.report/1"
 
 // Report is the report's data, as the JSON schema spells it.
 type Report struct {
-	Schema           string            `json:"schema"`
-	Records          int               `json:"records"`
-	Rejected         int64             `json:"rejected"`
-	Lines            int64             `json:"lines"`
+	Schema   string `json:"schema"`
+	Records  int    `json:"records"`
+	Rejected int64  `json:"rejected"`
+	Lines    int64  `json:"lines"`
+	// Parts counts lines joined into a record with the lines after them
+	// (CRI partial lines): lines = records read + rejected + parts.
+	Parts            int64             `json:"parts,omitempty"`
 	RejectedExamples []model.Rejection `json:"rejected_examples"`
 	Window           Window            `json:"window"`
 	Input            Input             `json:"input"`
@@ -57,6 +60,13 @@ type Field struct {
 	BestGiven      string  `json:"best_given"`
 	Residual       float64 `json:"residual_bits"`
 	Uncertainty    float64 `json:"uncertainty_coefficient"`
+	// Synthetic is set for a companion field that bitsift made from
+	// another (FIELD~log, FIELD~template): it is not in the log.
+	Synthetic bool `json:"synthetic"`
+	// DerivedFrom and DerivedBy say, for a synthetic field, from which
+	// field and how bitsift made it.
+	DerivedFrom string `json:"derived_from,omitempty"`
+	DerivedBy   string `json:"derived_by,omitempty"`
 }
 
 // Pair is one ordered pair of fields.
@@ -75,6 +85,7 @@ func Build(s *model.Snapshot) *Report {
 		Records:          s.Records,
 		Rejected:         s.Input.Rejected,
 		Lines:            s.Input.Lines,
+		Parts:            s.Input.Parts,
 		RejectedExamples: s.Input.RejectedExamples,
 		Input: Input{
 			Sources:    s.Input.Sources,
@@ -99,12 +110,16 @@ func Build(s *model.Snapshot) *Report {
 	order := sortedFields(s)
 	for _, i := range order {
 		f := &s.Fields[i]
-		r.Fields = append(r.Fields, Field{
+		rf := Field{
 			Name: f.Name, Kind: string(f.Kind), Present: f.Present, Distinct: f.Distinct,
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
 			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty),
-		})
+		}
+		if f.Synthetic != nil {
+			rf.Synthetic, rf.DerivedFrom, rf.DerivedBy = true, f.Synthetic.Source, f.Synthetic.Method
+		}
+		r.Fields = append(r.Fields, rf)
 	}
 	r.Pairs = []Pair{}
 	for _, i := range order {

@@ -1,0 +1,51 @@
+package parse
+
+// innerPrefix is put in front of an inner field's key when the key is
+// already one of the outer fields (a JSON log line with its own "time"
+// inside a container line that has one).
+const innerPrefix = "log."
+
+// inner reads the message carried inside another format (a container line,
+// a prefixed line) again as JSON or logfmt, when it is one of those.
+type inner struct {
+	json    JSON
+	logfmt  Logfmt
+	scratch Record
+}
+
+// add appends the fields of msg to rec: the fields of msg read as JSON or
+// logfmt if it is either, else one field key=msg. Keys equal to one of
+// outer get innerPrefix. It reports whether msg was structured.
+func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool {
+	in.scratch.Reset()
+	ok := false
+	switch {
+	case len(msg) >= 2 && msg[0] == '{':
+		ok = in.json.Parse(msg, &in.scratch) == nil
+	case in.logfmt.Sniff(msg) >= 0.5:
+		ok = in.logfmt.Parse(msg, &in.scratch) == nil
+	}
+	if !ok || in.scratch.Len() == 0 {
+		rec.AddKV(key, msg)
+		return false
+	}
+	for i := 0; i < in.scratch.Len(); i++ {
+		k := in.scratch.Key(i)
+		renamed := false
+		for _, o := range outer {
+			if string(k) == o {
+				renamed = true
+				break
+			}
+		}
+		k0 := int32(len(rec.buf))
+		if renamed {
+			rec.buf = append(rec.buf, innerPrefix...)
+		}
+		rec.buf = append(rec.buf, k...)
+		v0 := int32(len(rec.buf))
+		rec.buf = append(rec.buf, in.scratch.Value(i)...)
+		rec.end(k0, v0)
+	}
+	return true
+}
