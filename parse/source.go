@@ -42,6 +42,7 @@ const (
 	StateLive      SourceState = "live"      // following a live file or pipe
 	StateReplaying SourceState = "replaying" // replaying archives at a pace
 	StateWaiting   SourceState = "waiting"   // waiting for a file to appear
+	StatePaused    SourceState = "paused"    // a replay paused by the user
 	StateDone      SourceState = "done"      // every input read to its end
 )
 
@@ -61,7 +62,7 @@ type SourceStatus struct {
 // truncation, a missing file, a fault.
 type SourceEvent struct {
 	Time   time.Time
-	Kind   string // "rotated", "truncated", "missing", "appeared", "fault", ...
+	Kind   string // "rotated", "truncated", "missing", "appeared", "gap", "fault"
 	Detail string
 }
 
