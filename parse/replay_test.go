@@ -88,10 +88,19 @@ func writeFile(t *testing.T, path, content string) {
 	}
 }
 
-// nextLines reads a source on a goroutine of its own.
-func nextLines(ctx context.Context, src Source) <-chan string {
+// nextLines reads a source on a goroutine of its own; at the test's end it
+// stops it and closes the source, in that order.
+func nextLines(t *testing.T, src Source) <-chan string {
+	ctx, cancel := context.WithCancel(context.Background())
 	out := make(chan string)
+	done := make(chan struct{})
+	t.Cleanup(func() {
+		cancel()
+		<-done
+		src.Close()
+	})
 	go func() {
+		defer close(done)
 		defer close(out)
 		for {
 			l, err := src.Next(ctx)
@@ -131,10 +140,7 @@ func TestReplayPacing(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer r.Close()
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	lines := nextLines(ctx, r)
+	lines := nextLines(t, r)
 	if l := <-lines; !strings.Contains(l, `"n":0`) {
 		t.Fatalf("first line %q", l)
 	}
@@ -172,10 +178,7 @@ func TestReplayPauseStepResume(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer r.Close()
-	ctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	lines := nextLines(ctx, r)
+	lines := nextLines(t, r)
 	if st := r.Status(); st.State != StatePaused {
 		t.Errorf("state %q, want paused", st.State)
 	}
