@@ -16,9 +16,10 @@ import (
 
 // streamFlags are the flags every command that reads logs shares.
 type streamFlags struct {
-	format  string
-	window  string
-	maxLine int
+	format      string
+	window      string
+	maxLine     int
+	analyseTime bool
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -26,6 +27,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.StringVar(&f.format, "format", "", "log format ("+strings.Join(parse.Names(), ", ")+"); detected when empty")
 	fs.StringVar(&f.window, "window", defaultWindow, `records the figures cover: "all", a count (50000, 50k) or a duration (5m)`)
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
+	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return parse.Names(), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -41,11 +43,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 		}
 	}
-	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w}}, nil
+	return ingest.Config{Format: f.format, MaxLine: f.maxLine, Model: model.Options{Window: w}, AnalyseTime: f.analyseTime}, nil
 }
 
 type reportCmd struct {
 	streamFlags
+	live   followFlags
 	output string
 }
 
@@ -56,16 +59,22 @@ func newReportCmd(std IO) *cobra.Command {
 		Short: "Print the fields' information figures for log files or stdin",
 		Long: `report reads log files (plain, .gz or .zst) or standard input ("-") to the
 end and prints every field's entropy, kind and best predictor, and the
-strongest dependencies between fields.`,
+strongest dependencies between fields.
+
+With --follow it reads one live file from its start and goes on reading
+what is appended, across rotations, until --for has passed, no line has
+come for --idle, or it is interrupted; then it prints the report.`,
 		Example: `  bitsift report app.log
   bitsift report -o json --window 50000 app.log.zst
-  kubectl logs deploy/api | bitsift report -`,
+  kubectl logs deploy/api | bitsift report -
+  bitsift report --follow --idle 4s -o json /var/log/app.log`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return c.run(cmd.Context(), std, args)
 		},
 	}
 	c.register(cmd, "all")
+	c.live.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
@@ -85,8 +94,17 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
-	readErr := in.ReadFiles(ctx, paths)
-	if errors.Is(readErr, context.Canceled) {
+	var readErr error
+	if c.live.follow {
+		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
+	} else {
+		if err := c.live.check(); err != nil {
+			return err
+		}
+		readErr = in.ReadFiles(ctx, paths)
+	}
+	var usage *ExitError
+	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
 	snap := in.Snapshot(model.SnapshotOptions{})

@@ -29,8 +29,12 @@ type Config struct {
 	Format  string // a parse format name; "" detects
 	MaxLine int    // longest line in bytes (0: parse.DefaultMaxLine)
 	Model   model.Options
-	// Clock gives arrival times for records without a timestamp.
+	// Clock gives arrival times for records without a timestamp, and the
+	// reference year for syslog stamps.
 	Clock func() time.Time
+	// AnalyseTime analyses the timestamp field like any other; by default
+	// it is marked and left out of pairs (see model.Model.SetTimestamp).
+	AnalyseTime bool
 }
 
 // Ingester turns lines into model records.
@@ -41,6 +45,8 @@ type Ingester struct {
 	conf   float64
 	rec    parse.Record
 	times  parse.TimeFinder
+	// timeMarked: the timestamp field found has been marked in the model.
+	timeMarked bool
 
 	pending  []pendingLine // lines read before the format is known
 	nonBlank int           // non-blank lines in pending
@@ -60,6 +66,7 @@ func New(cfg Config) (*Ingester, error) {
 		cfg.Clock = time.Now
 	}
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
+	in.times.Now = cfg.Clock
 	if cfg.Format != "" {
 		f, err := parse.ByName(cfg.Format)
 		if err != nil {
@@ -162,6 +169,11 @@ func (in *Ingester) parse(line []byte, num int64, source string) {
 	t, ok := in.times.Find(&in.rec)
 	if !ok {
 		t = in.cfg.Clock().UnixNano()
+	} else if !in.timeMarked {
+		in.timeMarked = true
+		if !in.cfg.AnalyseTime {
+			in.model.SetTimestamp(in.times.Key())
+		}
 	}
 	in.model.Add(&in.rec, num, t)
 }
@@ -183,6 +195,8 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
 	s.Input.RejectedExamples = append([]model.Rejection(nil), in.input.RejectedExamples...)
 	s.Input.Faults = append([]string(nil), in.input.Faults...)
+	s.Input.Events = append([]parse.SourceEvent(nil), in.input.Events...)
+	s.Input.TimeField, s.Input.TimeFormat = in.times.Key(), in.times.Format()
 	return s
 }
 
@@ -198,8 +212,15 @@ func (in *Ingester) Take(l parse.Line) {
 	in.Line(l.Text, l.Num, l.Source)
 }
 
+// SetEvents sets the source events the snapshots list (a copy is kept):
+// the owner of the source passes src.Status().Events.
+func (in *Ingester) SetEvents(events []parse.SourceEvent) {
+	in.input.Events = append(in.input.Events[:0], events...)
+}
+
 // ReadSource reads src to its end, or until ctx is done. It goes on past an
-// input that fails (a fault is recorded), and returns the first fault.
+// input that fails (a fault is recorded), and returns the first fault. The
+// source's events are taken into the input accounting at the end.
 func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 	var first error
 	for {
@@ -210,9 +231,11 @@ func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 			continue
 		case errors.Is(err, io.EOF):
 			in.Flush()
+			in.SetEvents(src.Status().Events)
 			return first
 		case ctx.Err() != nil:
 			in.Flush()
+			in.SetEvents(src.Status().Events)
 			return ctx.Err()
 		}
 		in.Fault("", err)

@@ -35,6 +35,8 @@ type field struct {
 	tracked bool
 	// ident: the field is classified an identifier (with hysteresis).
 	ident bool
+	// timestamp: the stream's time field, never tracked (SetTimestamp).
+	timestamp bool
 }
 
 func newField(name string, index int) *field {

@@ -6,6 +6,7 @@ package report
 import (
 	"math"
 	"sort"
+	"time"
 
 	"bitsift/model"
 )
@@ -26,6 +27,16 @@ type Report struct {
 	Fields           []Field           `json:"fields"`
 	Pairs            []Pair            `json:"pairs"`
 	LeftOutFields    int               `json:"left_out_fields,omitempty"`
+	// Events are what happened to the sources while they were read:
+	// rotations, truncations, missing files, shortened replay gaps, faults.
+	Events []Event `json:"events"`
+}
+
+// Event is one thing that happened to a source.
+type Event struct {
+	Time   string `json:"time"` // RFC 3339 with nanoseconds
+	Kind   string `json:"kind"` // rotated, truncated, missing, appeared, gap, fault
+	Detail string `json:"detail"`
 }
 
 // Window describes the window the figures cover.
@@ -42,6 +53,10 @@ type Input struct {
 	Format     string   `json:"format"`
 	Confidence float64  `json:"format_confidence"`
 	Faults     []string `json:"faults,omitempty"`
+	// TimeField and TimeFormat are the stream's timestamp field and its
+	// format (rfc3339, epoch, syslog, access), when one was found.
+	TimeField  string `json:"time_field,omitempty"`
+	TimeFormat string `json:"time_format,omitempty"`
 }
 
 // Field is one field's figures.
@@ -57,6 +72,9 @@ type Field struct {
 	BestGiven      string  `json:"best_given"`
 	Residual       float64 `json:"residual_bits"`
 	Uncertainty    float64 `json:"uncertainty_coefficient"`
+	// Timestamp: the stream's timestamp field, left out of pairs and best
+	// predictors (--analyse-time includes it).
+	Timestamp bool `json:"timestamp"`
 }
 
 // Pair is one ordered pair of fields.
@@ -81,8 +99,14 @@ func Build(s *model.Snapshot) *Report {
 			Format:     s.Input.Format,
 			Confidence: round(s.Input.Confidence),
 			Faults:     s.Input.Faults,
+			TimeField:  s.Input.TimeField,
+			TimeFormat: s.Input.TimeFormat,
 		},
 		LeftOutFields: s.LeftOutFields,
+	}
+	r.Events = []Event{}
+	for _, e := range s.Input.Events {
+		r.Events = append(r.Events, Event{Time: e.Time.UTC().Format(time.RFC3339Nano), Kind: e.Kind, Detail: e.Detail})
 	}
 	if r.RejectedExamples == nil {
 		r.RejectedExamples = []model.Rejection{}
@@ -103,7 +127,7 @@ func Build(s *model.Snapshot) *Report {
 			Name: f.Name, Kind: string(f.Kind), Present: f.Present, Distinct: f.Distinct,
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
-			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty),
+			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
 		})
 	}
 	r.Pairs = []Pair{}
