@@ -56,7 +56,7 @@ func reportOf(t *testing.T, paths ...string) []byte {
 
 func TestReplayCompressedCopiesGiveIdenticalReports(t *testing.T) {
 	dir := t.TempDir()
-	plain := demoText(20000)
+	plain := demoText(8000)
 	var gz bytes.Buffer
 	zw := gzip.NewWriter(&gz)
 	zw.Write(plain)
@@ -78,8 +78,8 @@ func TestReplayCompressedCopiesGiveIdenticalReports(t *testing.T) {
 	if err := json.Unmarshal(want, &rep); err != nil {
 		t.Fatal(err)
 	}
-	if rep.Lines != 20000 || rep.Records != 20000 || rep.Rejected != 0 {
-		t.Fatalf("plain replay: %d lines, %d records, %d rejected; want 20000 records", rep.Lines, rep.Records, rep.Rejected)
+	if rep.Lines != 8000 || rep.Records != 8000 || rep.Rejected != 0 {
+		t.Fatalf("plain replay: %d lines, %d records, %d rejected; want 8000 records", rep.Lines, rep.Records, rep.Rejected)
 	}
 	for _, name := range []string{"a.jsonl.gz", "a.jsonl.zst"} {
 		t.Run(name, func(t *testing.T) {
