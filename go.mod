@@ -4,6 +4,7 @@ go 1.26
 
 require (
 	github.com/charmbracelet/x/ansi v0.11.6
+	github.com/fsnotify/fsnotify v1.10.1
 	github.com/klauspost/compress v1.20.4
 	github.com/mattn/go-isatty v0.0.24
 	github.com/spf13/cobra v1.10.2

@@ -22,6 +22,7 @@ type streamFlags struct {
 	maxLine      int
 	redact       bool
 	redactFields []string
+	analyseTime  bool
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -32,6 +33,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
+	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -43,7 +45,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
 	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
@@ -60,6 +62,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
+	live   followFlags
 	output string
 }
 
@@ -70,16 +73,22 @@ func newReportCmd(std IO) *cobra.Command {
 		Short: "Print the fields' information figures for log files or stdin",
 		Long: `report reads log files (plain, .gz or .zst) or standard input ("-") to the
 end and prints every field's entropy, kind and best predictor, and the
-strongest dependencies between fields.`,
+strongest dependencies between fields.
+
+With --follow it reads one live file from its start and goes on reading
+what is appended, across rotations, until --for has passed, no line has
+come for --idle, or it is interrupted; then it prints the report.`,
 		Example: `  bitsift report app.log
   bitsift report -o json --window 50000 app.log.zst
-  kubectl logs deploy/api | bitsift report -`,
+  kubectl logs deploy/api | bitsift report -
+  bitsift report --follow --idle 4s -o json /var/log/app.log`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return c.run(cmd.Context(), std, args)
 		},
 	}
 	c.register(cmd, "all")
+	c.live.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
@@ -100,8 +109,17 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
-	readErr := in.ReadFiles(ctx, paths)
-	if errors.Is(readErr, context.Canceled) {
+	var readErr error
+	if c.live.follow {
+		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
+	} else {
+		if err := c.live.check(); err != nil {
+			return err
+		}
+		readErr = in.ReadFiles(ctx, paths)
+	}
+	var usage *ExitError
+	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
 	snap := in.Snapshot(model.SnapshotOptions{})

@@ -24,7 +24,7 @@ func TestJSONDatasetsMatchPandas(t *testing.T) {
 			if !ok {
 				t.Fatalf("EXPECTED.json has no %s", name)
 			}
-			in, err := New(Config{Format: "json", NoCompanions: true})
+			in, err := New(Config{Format: "json", NoCompanions: true, AnalyseTime: true})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -33,7 +33,8 @@ type Config struct {
 	Pattern string
 	MaxLine int // longest line in bytes (0: parse.DefaultMaxLine)
 	Model   model.Options
-	// Clock gives arrival times for records without a timestamp.
+	// Clock gives arrival times for records without a timestamp, and the
+	// reference year for syslog stamps.
 	Clock func() time.Time
 	// Stdin is what the path "-" reads (default os.Stdin).
 	Stdin io.Reader
@@ -43,6 +44,9 @@ type Config struct {
 	RedactFields []string
 	// NoCompanions turns off the fields bitsift adds (see companions.go).
 	NoCompanions bool
+	// AnalyseTime analyses the timestamp field like any other; by default
+	// it is marked and left out of pairs (see model.Model.SetTimestamp).
+	AnalyseTime bool
 }
 
 // Ingester turns lines into model records.
@@ -56,6 +60,8 @@ type Ingester struct {
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
 	comp   companions
+	// timeMarked: the timestamp field found has been marked in the model.
+	timeMarked bool
 
 	lastSource string // the input of the last line Take saw
 
@@ -81,6 +87,7 @@ func New(cfg Config) (*Ingester, error) {
 		cfg.Clock = time.Now
 	}
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
+	in.times.Now = cfg.Clock
 	if cfg.Redact || len(cfg.RedactFields) > 0 {
 		r, err := NewRedactor(cfg.RedactFields)
 		if err != nil {
@@ -259,10 +266,17 @@ func (in *Ingester) read(line []byte, num int64, source string) bool {
 
 // recTime is the time of the record in in.rec: its own, else arrival.
 func (in *Ingester) recTime() int64 {
-	if t, ok := in.times.Find(&in.rec); ok {
-		return t
+	t, ok := in.times.Find(&in.rec)
+	if !ok {
+		return in.cfg.Clock().UnixNano()
 	}
-	return in.cfg.Clock().UnixNano()
+	if !in.timeMarked {
+		in.timeMarked = true
+		if !in.cfg.AnalyseTime {
+			in.model.SetTimestamp(in.times.Key())
+		}
+	}
+	return t
 }
 
 // add takes the record in in.rec, read from line num, into the model.
@@ -318,6 +332,8 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
 	s.Input.RejectedExamples = append([]model.Rejection(nil), in.input.RejectedExamples...)
 	s.Input.Faults = append([]string(nil), in.input.Faults...)
+	s.Input.Events = append([]parse.SourceEvent(nil), in.input.Events...)
+	s.Input.TimeField, s.Input.TimeFormat = in.times.Key(), in.times.Format()
 	return s
 }
 
@@ -340,8 +356,15 @@ func (in *Ingester) Take(l parse.Line) {
 	in.Line(l.Text, l.Num, l.Source)
 }
 
+// SetEvents sets the source events the snapshots list (a copy is kept):
+// the owner of the source passes src.Status().Events.
+func (in *Ingester) SetEvents(events []parse.SourceEvent) {
+	in.input.Events = append(in.input.Events[:0], events...)
+}
+
 // ReadSource reads src to its end, or until ctx is done. It goes on past an
-// input that fails (a fault is recorded), and returns the first fault.
+// input that fails (a fault is recorded), and returns the first fault. The
+// source's events are taken into the input accounting at the end.
 func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 	var first error
 	for {
@@ -352,9 +375,11 @@ func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 			continue
 		case errors.Is(err, io.EOF):
 			in.Flush()
+			in.SetEvents(src.Status().Events)
 			return first
 		case ctx.Err() != nil:
 			in.Flush()
+			in.SetEvents(src.Status().Events)
 			return ctx.Err()
 		}
 		in.Fault("", err)

@@ -54,6 +54,8 @@ type field struct {
 	ident bool
 	// synth is set for a field bitsift makes from another (a companion).
 	synth *Synthetic
+	// timestamp: the stream's time field, never tracked (SetTimestamp).
+	timestamp bool
 }
 
 func newField(name string, index int) *field {

@@ -236,7 +236,7 @@ func (m *Model) trackedCount() int {
 // filled from the window's records.
 func (m *Model) track(idx int) {
 	f := m.fields[idx]
-	if f.tracked {
+	if f.tracked || f.timestamp {
 		return
 	}
 	f.tracked = true
@@ -295,7 +295,7 @@ func (m *Model) reclassify() {
 		}
 	}
 	for i, f := range m.fields {
-		if !f.ident && !f.tracked && m.trackedCount() < m.opt.MaxPairFields {
+		if !f.ident && !f.tracked && !f.timestamp && m.trackedCount() < m.opt.MaxPairFields {
 			m.track(i)
 		}
 	}

@@ -4,6 +4,8 @@ import (
 	"math"
 	"sort"
 	"time"
+
+	"bitsift/parse"
 )
 
 // Kind is what a field is to the rest of the record.
@@ -55,6 +57,9 @@ type FieldStats struct {
 	BytesPerRecord float64
 	// Tracked: pairs with this field are measured.
 	Tracked bool
+	// Timestamp: the field is the stream's timestamp, left out of pairs
+	// and best predictors (see Model.SetTimestamp).
+	Timestamp bool
 	// BestGiven is the tracked non-identifier field G ≠ F with the least
 	// H(F|G); "" when there is none. Residual is that H(F|G) and
 	// Uncertainty is Theil's U(F|G) = I(F;G)/H(F) (1 when H(F) is 0).
@@ -111,6 +116,12 @@ type Input struct {
 	// Parts counts lines held as parts of a record joined from several
 	// lines (CRI partial lines): Lines == records + Rejected + Parts.
 	Parts int64
+	// TimeField and TimeFormat are the stream's timestamp field and its
+	// format (see parse.TimeFinder), "" when none was found.
+	TimeField, TimeFormat string
+	// Events are what happened to the sources (rotations, truncations,
+	// missing files, shortened gaps, faults), oldest first.
+	Events []parse.SourceEvent
 }
 
 // Rejection is one rejected line.
@@ -199,6 +210,7 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 			sy := *f.synth
 			fs.Synthetic = &sy
 		}
+		fs.Timestamp = f.timestamp
 		if n > 0 {
 			fs.BytesPerRecord = float64(f.present*int64(len(f.name))+f.valueBytes+f.overflowBytes) / float64(n)
 		}

@@ -3,11 +3,14 @@ package parse
 import (
 	"bufio"
 	"bytes"
+	"compress/flate"
 	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"strings"
+	"syscall"
 
 	"github.com/klauspost/compress/zstd"
 )
@@ -38,13 +41,55 @@ func Open(path string) (io.ReadCloser, error) {
 	return rc, nil
 }
 
+// explainOpen says in one line why a file could not be opened, keeping err
+// for errors.Is.
 func explainOpen(err error) error {
 	switch {
+	case errors.Is(err, os.ErrNotExist):
+		return &explained{"no such file (check the path)", err}
 	case errors.Is(err, os.ErrPermission):
-		return fmt.Errorf("%w (permission denied: check the file's mode or run as a user who may read it)", err)
+		return &explained{"permission denied (check the file's mode, or run as a user who may read it)", err}
+	case errors.Is(err, syscall.EISDIR):
+		return &explained{"is a folder, not a file", err}
 	}
 	return err
 }
+
+// explainRead says what a read error of a (compressed) file means.
+func explainRead(err error) error {
+	var corrupt flate.CorruptInputError
+	switch {
+	case errors.Is(err, io.ErrUnexpectedEOF):
+		return &explained{"compressed data ends early (the file is truncated)", err}
+	case errors.Is(err, gzip.ErrChecksum), errors.Is(err, gzip.ErrHeader), errors.As(err, &corrupt):
+		return &explained{"gzip data is corrupt: " + strings.TrimPrefix(err.Error(), "gzip: "), err}
+	case errors.Is(err, syscall.EISDIR):
+		return &explained{"is a folder, not a file", err}
+	}
+	return err
+}
+
+// zstdReader names the faults of zstd data as such: the decoder's errors
+// do not say where they come from.
+type zstdReader struct{ r io.Reader }
+
+func (z zstdReader) Read(p []byte) (int, error) {
+	n, err := z.r.Read(p)
+	if err != nil && err != io.EOF && !errors.Is(err, io.ErrUnexpectedEOF) {
+		err = &explained{"zstd data is corrupt: " + strings.TrimPrefix(err.Error(), "zstd: "), err}
+	}
+	return n, err
+}
+
+// explained is an error with a message for the user that still unwraps to
+// its cause.
+type explained struct {
+	msg string
+	err error
+}
+
+func (e *explained) Error() string { return e.msg }
+func (e *explained) Unwrap() error { return e.err }
 
 type readCloser struct {
 	io.Reader
@@ -55,23 +100,29 @@ func (r readCloser) Close() error { return r.close() }
 
 // Decompress wraps rc in a gzip or zstd reader when its first bytes say so.
 func Decompress(rc io.ReadCloser) (io.ReadCloser, error) {
-	br := bufio.NewReaderSize(rc, 256<<10)
+	return decompress(bufio.NewReaderSize(rc, 256<<10), rc.Close)
+}
+
+// decompress reads br, decompressing it when its first bytes say so, and
+// closes with closeFn. The caller may ask br how much it holds unread, to
+// tell where in the stored file a fault is.
+func decompress(br *bufio.Reader, closeFn func() error) (io.ReadCloser, error) {
 	magic, _ := br.Peek(4)
 	switch {
 	case len(magic) >= 2 && magic[0] == 0x1f && magic[1] == 0x8b:
 		zr, err := gzip.NewReader(br)
 		if err != nil {
-			return nil, fmt.Errorf("gzip: %w", err)
+			return nil, explainRead(err)
 		}
-		return readCloser{zr, func() error { zr.Close(); return rc.Close() }}, nil
+		return readCloser{zr, func() error { zr.Close(); return closeFn() }}, nil
 	case len(magic) == 4 && bytes.Equal(magic, []byte{0x28, 0xb5, 0x2f, 0xfd}):
 		zr, err := zstd.NewReader(br, zstd.WithDecoderConcurrency(1))
 		if err != nil {
-			return nil, fmt.Errorf("zstd: %w", err)
+			return nil, explainRead(err)
 		}
-		return readCloser{zr, func() error { zr.Close(); return rc.Close() }}, nil
+		return readCloser{zstdReader{zr}, func() error { zr.Close(); return closeFn() }}, nil
 	}
-	return readCloser{br, rc.Close}, nil
+	return readCloser{br, closeFn}, nil
 }
 
 // Lines splits a stream into lines, numbered from 1, without their line

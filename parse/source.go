@@ -1,6 +1,7 @@
 package parse
 
 import (
+	"bufio"
 	"context"
 	"errors"
 	"io"
@@ -42,6 +43,7 @@ const (
 	StateLive      SourceState = "live"      // following a live file or pipe
 	StateReplaying SourceState = "replaying" // replaying archives at a pace
 	StateWaiting   SourceState = "waiting"   // waiting for a file to appear
+	StatePaused    SourceState = "paused"    // a replay paused by the user
 	StateDone      SourceState = "done"      // every input read to its end
 )
 
@@ -61,7 +63,7 @@ type SourceStatus struct {
 // truncation, a missing file, a fault.
 type SourceEvent struct {
 	Time   time.Time
-	Kind   string // "rotated", "truncated", "missing", "appeared", "fault", ...
+	Kind   string // "rotated", "truncated", "missing", "appeared", "gap", "fault"
 	Detail string
 }
 
@@ -81,6 +83,7 @@ type FileSource struct {
 	mu     sync.Mutex
 	status SourceStatus
 	count  *countingReader
+	buf    *bufio.Reader // between count and the decompressor
 }
 
 // NewFileSource reads paths in order with lines of at most maxLine bytes.
@@ -154,9 +157,13 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 			fs.closeCur()
 		default:
 			name := fs.name
-			fs.event("fault", name+": "+err.Error())
+			// The stored file's offset of the fault: what was read from
+			// it less what the buffer still holds.
+			off := fs.count.n - int64(fs.buf.Buffered())
+			err = explainRead(err)
+			fs.event("fault", (&SourceError{Source: name, Err: err, Offset: off}).Error())
 			fs.closeCur()
-			return Line{}, &SourceError{Source: name, Err: err, Offset: fs.count.n}
+			return Line{}, &SourceError{Source: name, Err: err, Offset: off}
 		}
 	}
 }
@@ -177,7 +184,8 @@ func (fs *FileSource) open(p string) error {
 		raw = f
 	}
 	fs.count = &countingReader{r: raw, fs: fs}
-	rc, err := Decompress(readCloser{fs.count, raw.Close})
+	fs.buf = bufio.NewReaderSize(fs.count, 256<<10)
+	rc, err := decompress(fs.buf, raw.Close)
 	if err != nil {
 		raw.Close()
 		return err

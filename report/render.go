@@ -8,6 +8,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
 	"bitsift/sanitize"
 )
@@ -41,11 +42,11 @@ func WriteJSON(w io.Writer, r *Report) error {
 func WriteCSV(w io.Writer, r *Report) error {
 	cw := csv.NewWriter(w)
 	cw.Write([]string{"name", "kind", "present", "distinct", "entropy_bits", "entropy_mm_bits",
-		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient", "synthetic"})
+		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient", "synthetic", "timestamp"})
 	for _, f := range r.Fields {
 		cw.Write([]string{f.Name, f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
 			num(f.Entropy), num(f.EntropyMM), strconv.FormatBool(f.Estimate), num(f.BytesPerRecord),
-			f.BestGiven, num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic)})
+			f.BestGiven, num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic), strconv.FormatBool(f.Timestamp)})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -96,7 +97,7 @@ func WriteText(w io.Writer, r *Report) error {
 		fmt.Fprintf(b, ", %d joined to the line after them", r.Parts)
 	}
 	b.WriteString("\n\n")
-	//            name     kind  bits  dist best  left B/rec
+	hasTime := false
 	fmt.Fprintf(b, "%-20s %-11s %6s %8s  %-16s %6s %6s\n",
 		"FIELD", "KIND", "BITS", "DISTINCT", "BEST GIVEN", "LEFT", "B/REC")
 	for _, f := range r.Fields {
@@ -108,11 +109,18 @@ func WriteText(w io.Writer, r *Report) error {
 		if f.BestGiven != "" {
 			best, left = f.BestGiven, fmt.Sprintf("%.3f", f.Residual)
 		}
+		kind := f.Kind
+		if f.Timestamp {
+			kind, hasTime = "timestamp", true
+		}
 		fmt.Fprintf(b, "%s %-11s %6.3f %8s  %s %6s %6.1f\n",
-			sanitize.Pad(f.Name, 20), f.Kind, f.Entropy, dist, sanitize.Pad(best, 16), left, f.BytesPerRecord)
+			sanitize.Pad(f.Name, 20), kind, f.Entropy, dist, sanitize.Pad(best, 16), left, f.BytesPerRecord)
 	}
 	b.WriteString("\nBITS: entropy H(F) per record; LEFT: bits of the field left once BEST GIVEN\nis known, H(F|G); B/REC: bytes of key and value per record.\n")
 	writeSynthetic(b, r)
+	if hasTime {
+		b.WriteString("timestamp: the stream's time field, left out of pairs and best predictors\n(--analyse-time includes it).\n")
+	}
 	if deps := r.Dependencies(12); len(deps) > 0 {
 		b.WriteString("\nStrongest dependencies (U = share of the field's bits the other explains):\n")
 		for _, d := range deps {
@@ -146,6 +154,7 @@ func WriteText(w io.Writer, r *Report) error {
 			b.WriteByte('\n')
 		}
 	}
+	writeEvents(b, r.Events)
 	for _, f := range r.Input.Faults {
 		fmt.Fprintf(b, "\nfault: %s\n", sanitize.String(f))
 	}
@@ -166,6 +175,26 @@ func writeSynthetic(b *strings.Builder, r *Report) {
 			first = false
 		}
 		fmt.Fprintf(b, "  %s ← %s: %s\n", sanitize.Fit(f.Name, 28), sanitize.Fit(f.DerivedFrom, 20), f.DerivedBy)
+	}
+}
+
+// writeEvents lists the source events, faults aside (they are listed on
+// their own below).
+func writeEvents(b *strings.Builder, events []Event) {
+	n := 0
+	for _, e := range events {
+		if e.Kind == "fault" {
+			continue
+		}
+		if n == 0 {
+			b.WriteString("\nSource events:\n")
+		}
+		n++
+		at := e.Time
+		if t, err := time.Parse(time.RFC3339Nano, e.Time); err == nil {
+			at = t.Format("2006-01-02 15:04:05.000Z")
+		}
+		fmt.Fprintf(b, "  %s  %-9s %s\n", at, e.Kind, sanitize.String(e.Detail))
 	}
 }
 
@@ -193,8 +222,12 @@ func WriteMarkdown(w io.Writer, r *Report) error {
 			name += " †"
 			synth = true
 		}
+		kind := f.Kind
+		if f.Timestamp {
+			kind = "timestamp"
+		}
 		fmt.Fprintf(b, "| %s | %s | %.3f | %d | %s | %.3f | %.1f |\n",
-			name, f.Kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
+			name, kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
 	}
 	if synth {
 		b.WriteString("\n† derived by bitsift from another field, not in the log.\n")

@@ -6,6 +6,7 @@ package report
 import (
 	"math"
 	"sort"
+	"time"
 
 	"bitsift/model"
 )
@@ -29,6 +30,16 @@ type Report struct {
 	Fields           []Field           `json:"fields"`
 	Pairs            []Pair            `json:"pairs"`
 	LeftOutFields    int               `json:"left_out_fields,omitempty"`
+	// Events are what happened to the sources while they were read:
+	// rotations, truncations, missing files, shortened replay gaps, faults.
+	Events []Event `json:"events"`
+}
+
+// Event is one thing that happened to a source.
+type Event struct {
+	Time   string `json:"time"` // RFC 3339 with nanoseconds
+	Kind   string `json:"kind"` // rotated, truncated, missing, appeared, gap, fault
+	Detail string `json:"detail"`
 }
 
 // Window describes the window the figures cover.
@@ -45,6 +56,10 @@ type Input struct {
 	Format     string   `json:"format"`
 	Confidence float64  `json:"format_confidence"`
 	Faults     []string `json:"faults,omitempty"`
+	// TimeField and TimeFormat are the stream's timestamp field and its
+	// format (rfc3339, epoch, syslog, access), when one was found.
+	TimeField  string `json:"time_field,omitempty"`
+	TimeFormat string `json:"time_format,omitempty"`
 }
 
 // Field is one field's figures.
@@ -67,6 +82,9 @@ type Field struct {
 	// field and how bitsift made it.
 	DerivedFrom string `json:"derived_from,omitempty"`
 	DerivedBy   string `json:"derived_by,omitempty"`
+	// Timestamp: the stream's timestamp field, left out of pairs and best
+	// predictors (--analyse-time includes it).
+	Timestamp bool `json:"timestamp"`
 }
 
 // Pair is one ordered pair of fields.
@@ -92,8 +110,14 @@ func Build(s *model.Snapshot) *Report {
 			Format:     s.Input.Format,
 			Confidence: round(s.Input.Confidence),
 			Faults:     s.Input.Faults,
+			TimeField:  s.Input.TimeField,
+			TimeFormat: s.Input.TimeFormat,
 		},
 		LeftOutFields: s.LeftOutFields,
+	}
+	r.Events = []Event{}
+	for _, e := range s.Input.Events {
+		r.Events = append(r.Events, Event{Time: e.Time.UTC().Format(time.RFC3339Nano), Kind: e.Kind, Detail: e.Detail})
 	}
 	if r.RejectedExamples == nil {
 		r.RejectedExamples = []model.Rejection{}
@@ -114,7 +138,7 @@ func Build(s *model.Snapshot) *Report {
 			Name: f.Name, Kind: string(f.Kind), Present: f.Present, Distinct: f.Distinct,
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
-			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty),
+			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
 		}
 		if f.Synthetic != nil {
 			rf.Synthetic, rf.DerivedFrom, rf.DerivedBy = true, f.Synthetic.Source, f.Synthetic.Method
