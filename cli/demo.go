@@ -93,6 +93,10 @@ func (c *demoCmd) run(ctx context.Context, std IO) error {
 // runDefault is `bitsift` with no command: the demo stream, on the screen
 // when stdout is a terminal, else as a report.
 func runDefault(ctx context.Context, std IO) error {
+	if std.IsTerminal {
+		cfg := ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}}
+		return showScreen(ctx, std, cfg, demo.NewSource(1, 0, demo.ScreenRate))
+	}
 	in, err := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
 	if err != nil {
 		return err
