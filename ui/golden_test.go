@@ -12,7 +12,16 @@ import (
 	"github.com/charmbracelet/x/ansi"
 )
 
-var update = flag.Bool("update", false, "rewrite the golden files in testdata/")
+// updating says whether -update was given. teatest's golden package
+// already defines the flag; this file shares it rather than clash.
+func updating() bool {
+	f := flag.Lookup("update")
+	if f == nil {
+		return false
+	}
+	v, _ := f.Value.(flag.Getter).Get().(bool)
+	return v
+}
 
 // press sends keys to a model, as typed.
 func press(t testing.TB, m Model, keys ...string) Model {
@@ -75,7 +84,7 @@ func TestGolden(t *testing.T) {
 				got := ansi.Strip(m.View())
 				checkSize(t, got, size[0], size[1])
 				path := filepath.Join("testdata", name+".golden")
-				if *update {
+				if updating() {
 					if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
 						t.Fatal(err)
 					}
