@@ -75,7 +75,8 @@ measures, per field, its Shannon entropy in bits, and for pairs of fields how
 much one tells about the other. It shows which fields are redundant, what
 changed, and what could be dropped before shipping.
 
-With no command it runs on a built-in demo stream.`,
+With no command it shows the live screen on a built-in demo stream (on a
+terminal), or prints the demo's report (otherwise).`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 		Args:          cobra.NoArgs,
@@ -89,7 +90,7 @@ With no command it runs on a built-in demo stream.`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &ExitError{Code: ExitUsage, Err: fmt.Errorf("%w (see %s --help)", err, c.CommandPath())}
 	})
-	root.AddCommand(newReportCmd(std), newDemoCmd(std))
+	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std))
 	return root
 }
 

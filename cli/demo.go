@@ -93,6 +93,13 @@ func (c *demoCmd) run(ctx context.Context, std IO) error {
 // runDefault is `bitsift` with no command: the demo stream, on the screen
 // when stdout is a terminal, else as a report.
 func runDefault(ctx context.Context, std IO) error {
+	if std.IsTerminal {
+		// A window of 100,000 records (50 s at the demo's pace) keeps
+		// memory bounded on an endless stream and lets the incident
+		// stand out rather than fade into all that came before.
+		cfg := ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}}
+		return showScreen(ctx, std, cfg, demo.NewSource(1, 0, demo.ScreenRate))
+	}
 	in, err := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
 	if err != nil {
 		return err

@@ -410,3 +410,11 @@ func (unknownFormat) Sniff([]byte) float64 { return 0 }
 func (unknownFormat) Parse([]byte, *parse.Record) error {
 	return &parse.RejectError{Reason: "no known format matches this stream (use --format or --pattern)"}
 }
+
+// SetWindow rebuilds the model over window w from the records the current
+// window holds (see model.Model.WithWindow). The input accounting (lines,
+// rejections) is of the whole stream and does not change.
+func (in *Ingester) SetWindow(w model.Window) {
+	in.cfg.Model.Window = w
+	in.model = in.model.WithWindow(w)
+}

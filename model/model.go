@@ -2,7 +2,6 @@ package model
 
 import (
 	"math"
-	"strconv"
 	"time"
 
 	"bitsift/parse"
@@ -325,14 +324,7 @@ func (m *Model) Rebuild() *Model {
 		rec.Reset()
 		for j, id := range m.st.row(i) {
 			if id != absent && id != overflow && j < len(m.fields) {
-				var v string
-				if m.fields[j].byHash != nil {
-					// Hashed values are equal iff their ids are.
-					v = "#" + strconv.Itoa(int(id))
-				} else {
-					v = m.fields[j].text[id]
-				}
-				rec.AddString(names[j], v)
+				rec.AddString(names[j], m.fields[j].replayValue(id))
 			}
 		}
 		meta := m.st.metaAt(i)

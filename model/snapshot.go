@@ -100,6 +100,9 @@ type Snapshot struct {
 	Oldest, Newest int64
 	// Input is filled by the caller that owns the stream.
 	Input Input
+	// Detail is filled when SnapshotOptions.Detail names a field that has
+	// a tracked pair with its given field; nil otherwise.
+	Detail *Detail
 }
 
 // Input describes where the records came from.
@@ -177,6 +180,14 @@ func nonNeg(x float64) float64 {
 // SnapshotOptions choose what a snapshot carries besides the figures.
 type SnapshotOptions struct {
 	TopValues int // values per field in Top (default 10; < 0: none)
+	// Detail names a field F whose distribution given each value of
+	// another field G is wanted in Snapshot.Detail; "" for none.
+	Detail string
+	// DetailGiven names G; "" means F's best predictor (BestGiven).
+	DetailGiven string
+	// DetailRows is how many values of G, DetailTop how many values of F
+	// per value of G (defaults 8 and 5).
+	DetailRows, DetailTop int
 }
 
 // Snapshot copies out the current figures. It costs O(fields² + values).
@@ -241,7 +252,33 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 		s.joint[p.b][p.a] = h
 	}
 	s.classify()
+	if opt.Detail != "" {
+		s.Detail = m.snapshotDetail(s, opt)
+	}
 	return s
+}
+
+func (m *Model) snapshotDetail(s *Snapshot, opt SnapshotOptions) *Detail {
+	fi, ok := m.byName[opt.Detail]
+	if !ok {
+		return nil
+	}
+	given := opt.DetailGiven
+	if given == "" {
+		given = s.Fields[fi].BestGiven
+	}
+	gi, ok := m.byName[given]
+	if !ok {
+		return nil
+	}
+	rows, top := opt.DetailRows, opt.DetailTop
+	if rows <= 0 {
+		rows = defaultDetailRows
+	}
+	if top <= 0 {
+		top = defaultDetailTop
+	}
+	return m.detail(fi, gi, rows, top)
 }
 
 // classify finds each field's best predictor and marks derived fields.

@@ -1,0 +1,59 @@
+package cli
+
+import (
+	"context"
+	"errors"
+
+	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/lipgloss"
+
+	"bitsift/ingest"
+	"bitsift/parse"
+	"bitsift/ui"
+)
+
+// showScreen runs the live screen over src until the user quits, ctx is
+// done, or a signal arrives; the terminal is restored in every case. Keys
+// come from the terminal itself when standard input carries the log.
+func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
+	in, err := ingest.New(cfg)
+	if err != nil {
+		return &ExitError{Code: ExitUsage, Err: err}
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	live := ingest.StartLive(ctx, in, src)
+	defer live.Stop()
+
+	r := lipgloss.NewRenderer(std.Out)
+	// Ask the terminal for its background now, before the screen reads
+	// the keyboard: the answer would otherwise arrive as keys.
+	r.HasDarkBackground()
+	windows := ui.DefaultWindows
+	if w := cfg.Model.Window; !containsWindow(windows, w) {
+		windows = append([]ui.Window{w}, windows...)
+	}
+	m := ui.New(live, ui.Options{Renderer: r, Context: ctx, Windows: windows})
+	opts := []tea.ProgramOption{
+		tea.WithContext(ctx), tea.WithOutput(std.Out), tea.WithAltScreen(), tea.WithMouseCellMotion(),
+	}
+	if stdinIsPipe() {
+		opts = append(opts, tea.WithInputTTY())
+	} else {
+		opts = append(opts, tea.WithInput(std.In))
+	}
+	_, err = tea.NewProgram(m, opts...).Run()
+	if errors.Is(err, tea.ErrProgramKilled) || errors.Is(err, tea.ErrInterrupted) {
+		return nil
+	}
+	return err
+}
+
+func containsWindow(ws []ui.Window, w ui.Window) bool {
+	for _, x := range ws {
+		if x == w {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,234 @@
+package ingest
+
+import (
+	"context"
+	"errors"
+	"io"
+	"time"
+
+	"bitsift/model"
+	"bitsift/parse"
+)
+
+// Frame is what a screen draws at one moment: a snapshot of the model with
+// the source's status and the rates measured between frames.
+type Frame struct {
+	Snap   *model.Snapshot
+	Source parse.SourceStatus
+	// Rates over the last few seconds: lines read, records taken, bytes
+	// of the source read (as stored), each per second.
+	LinesPerSec, RecordsPerSec, BytesPerSec float64
+	// Ended: the source has ended; no more lines will come.
+	Ended bool
+	// Err is the first fault of the source, nil if none.
+	Err error
+	// Cost is how long taking the snapshot held up ingest.
+	Cost time.Duration
+}
+
+// Live runs an Ingester on its own goroutine, fed by a Source read on a
+// second goroutine, and hands out Frames on request. Lines pass from the
+// reader to the owner in batches (see handoff), never one message per line;
+// a request is answered between two runs of at most chunkLines lines.
+type Live struct {
+	in  *Ingester
+	src parse.Source
+	h   *handoff
+
+	reqs    chan frameReq
+	windows chan model.Window
+	cancel  context.CancelFunc
+	done    chan struct{}
+
+	// Owned by the run goroutine.
+	ended   bool
+	err     error
+	samples []rateSample
+}
+
+type frameReq struct {
+	opt   model.SnapshotOptions
+	reply chan *Frame
+}
+
+// chunkLines is how many lines the owner takes between two looks at its
+// requests: at a few microseconds a line, well under a millisecond.
+const chunkLines = 256
+
+// StartLive starts reading src into in. The Live owns both from now on:
+// nothing else may use in until Stop returns. Stop (or cancelling ctx) ends
+// it.
+func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
+	ctx, cancel := context.WithCancel(ctx)
+	l := &Live{
+		in:      in,
+		src:     src,
+		h:       newHandoff(),
+		reqs:    make(chan frameReq),
+		windows: make(chan model.Window, 1),
+		cancel:  cancel,
+		done:    make(chan struct{}),
+	}
+	in.AddSource(src.Status().Name)
+	go l.read(ctx)
+	go l.run(ctx)
+	return l
+}
+
+// read is the reader goroutine: Source.Next in a loop.
+func (l *Live) read(ctx context.Context) {
+	for {
+		line, err := l.src.Next(ctx)
+		switch {
+		case err == nil:
+			if !l.h.put(line, nil) {
+				return
+			}
+			continue
+		case errors.Is(err, io.EOF), ctx.Err() != nil:
+			l.h.end(err)
+			return
+		}
+		if !l.h.put(parse.Line{}, err) {
+			return
+		}
+	}
+}
+
+// run is the owner goroutine: the only one that touches the Ingester.
+func (l *Live) run(ctx context.Context) {
+	defer close(l.done)
+	defer l.h.close()
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case <-l.h.ready:
+			b, ended, _ := l.h.take()
+			l.takeBatch(b)
+			if ended && !l.ended {
+				l.ended = true
+				l.in.Flush()
+			}
+		case r := <-l.reqs:
+			r.reply <- l.frame(r.opt)
+		case w := <-l.windows:
+			l.in.SetWindow(w)
+		}
+	}
+}
+
+func (l *Live) takeBatch(b *batch) {
+	for i, bl := range b.lines {
+		if i%chunkLines == chunkLines-1 {
+			l.serve()
+		}
+		if bl.err != nil {
+			l.in.Fault("", bl.err)
+			if l.err == nil {
+				l.err = bl.err
+			}
+			continue
+		}
+		l.in.Take(parse.Line{Text: b.text[bl.start:bl.end], Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
+	}
+}
+
+// serve answers the requests already waiting, without waiting for any.
+func (l *Live) serve() {
+	for {
+		select {
+		case r := <-l.reqs:
+			r.reply <- l.frame(r.opt)
+		case w := <-l.windows:
+			l.in.SetWindow(w)
+		default:
+			return
+		}
+	}
+}
+
+type rateSample struct {
+	t                     time.Time
+	lines, records, bytes int64
+}
+
+// rateSpan is how far back the rates look.
+const rateSpan = 3 * time.Second
+
+func (l *Live) frame(opt model.SnapshotOptions) *Frame {
+	t0 := time.Now()
+	snap := l.in.Snapshot(opt)
+	f := &Frame{Snap: snap, Source: l.src.Status(), Ended: l.ended, Err: l.err, Cost: time.Since(t0)}
+	now := time.Now()
+	cur := rateSample{now, snap.Input.Lines, snap.Seen, f.Source.BytesRead}
+	// Keep one sample older than the span, so the rates cover it whole.
+	for len(l.samples) > 1 && now.Sub(l.samples[1].t) >= rateSpan {
+		l.samples = l.samples[1:]
+	}
+	if len(l.samples) > 0 {
+		old := l.samples[0]
+		if dt := now.Sub(old.t).Seconds(); dt > 0.05 {
+			f.LinesPerSec = float64(cur.lines-old.lines) / dt
+			f.RecordsPerSec = float64(cur.records-old.records) / dt
+			f.BytesPerSec = float64(cur.bytes-old.bytes) / dt
+		}
+	}
+	l.samples = append(l.samples, cur)
+	return f
+}
+
+// Frame returns a frame of the newest figures. It waits for the owner to
+// finish the chunk of lines it is on (well under a millisecond), then for
+// the snapshot. It returns ctx's error, or ErrStopped after Stop.
+func (l *Live) Frame(ctx context.Context, opt model.SnapshotOptions) (*Frame, error) {
+	r := frameReq{opt: opt, reply: make(chan *Frame, 1)}
+	select {
+	case l.reqs <- r:
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	case <-l.done:
+		return nil, ErrStopped
+	}
+	select {
+	case f := <-r.reply:
+		return f, nil
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	}
+}
+
+// ErrStopped is returned by Frame after the Live has stopped.
+var ErrStopped = errors.New("ingest: the live reader has stopped")
+
+// SetWindow asks for the figures to cover window w from now on; it does
+// not wait. The model is rebuilt from the records the old window holds
+// (see model.Model.WithWindow): a smaller window keeps the newest of them,
+// a larger one starts with all of them and fills as records arrive. The
+// line and rejection counts cover the whole stream and do not change. When
+// several changes are asked for before the owner gets to them, the newest
+// wins.
+func (l *Live) SetWindow(w model.Window) {
+	for {
+		select {
+		case l.windows <- w:
+			return
+		default:
+		}
+		select {
+		case <-l.windows:
+		default:
+		}
+	}
+}
+
+// Stop ends ingest and waits for the owner goroutine. The reader goroutine
+// ends when the source's Next returns; a read blocked in the kernel (a
+// quiet pipe) may outlive Stop, harmlessly.
+func (l *Live) Stop() {
+	l.cancel()
+	<-l.done
+}
+
+// Done is closed when the owner goroutine has ended.
+func (l *Live) Done() <-chan struct{} { return l.done }

@@ -1,0 +1,97 @@
+package ui
+
+import (
+	"context"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/charmbracelet/lipgloss"
+
+	"bitsift/demo"
+	"bitsift/ingest"
+	"bitsift/model"
+	"bitsift/parse"
+)
+
+// fixtureFrames are frames of the demo stream (seed 1) every 8,000 lines
+// up to 96,000, into its incident (from line 70,001), with two rejected
+// lines and one source event: the same every run.
+var fixtureFrames = sync.OnceValue(func() []*ingest.Frame {
+	in, err := ingest.New(ingest.Config{})
+	if err != nil {
+		panic(err)
+	}
+	in.AddSource("demo")
+	g := demo.New(1, 0)
+	var buf []byte
+	var frames []*ingest.Frame
+	var bytes int64
+	event := parse.SourceEvent{
+		Time: time.Date(2026, 3, 14, 6, 0, 41, 0, time.UTC), Kind: "rotated", Detail: "quayside.log → quayside.log.1",
+	}
+	for n := int64(1); n <= 96_000; n++ {
+		switch n {
+		case 5000:
+			in.Line([]byte(`{"ts":"2026-03-14T06:00:02Z","level":"info","svc":"quay`), n, "demo")
+		case 5001:
+			in.Line([]byte("\x1b[31mnot a record\x1b[0m"), n, "demo")
+		default:
+			buf = g.Append(buf[:0])
+			bytes += int64(len(buf)) + 1
+			in.Line(buf, n, "demo")
+		}
+		if n%8000 == 0 {
+			in.Flush()
+			f := &ingest.Frame{
+				Snap: in.Snapshot(model.SnapshotOptions{TopValues: topValues, Detail: "upstream", DetailRows: 12, DetailTop: 6}),
+				Source: parse.SourceStatus{
+					Name: "demo (quayside)", State: parse.StateLive, BytesRead: bytes, Lines: n,
+					Note: "incident from line 70,001 (35s in)",
+				},
+				LinesPerSec: 2000, RecordsPerSec: 2000, BytesPerSec: 2000 * 260,
+			}
+			if n >= 48_000 {
+				f.Source.Events = []parse.SourceEvent{event}
+			}
+			frames = append(frames, f)
+		}
+	}
+	return frames
+})
+
+// staticFeed hands out one frame, whatever is asked.
+type staticFeed struct {
+	mu      sync.Mutex
+	frame   *ingest.Frame
+	windows []model.Window
+}
+
+func (s *staticFeed) Frame(ctx context.Context, opt model.SnapshotOptions) (*ingest.Frame, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.frame, nil
+}
+
+func (s *staticFeed) SetWindow(w model.Window) {
+	s.mu.Lock()
+	s.windows = append(s.windows, w)
+	s.mu.Unlock()
+}
+
+// fixtureModel is the screen at w×h after every fixture frame.
+func fixtureModel(t testing.TB, w, h int) (Model, *staticFeed) {
+	t.Helper()
+	frames := fixtureFrames()
+	feed := &staticFeed{frame: frames[len(frames)-1]}
+	m := New(feed, Options{HistoryEvery: -1, Renderer: lipgloss.NewRenderer(discard{})})
+	m = m.resize(w, h)
+	for _, f := range frames {
+		m = m.apply(f)
+	}
+	return m, feed
+}
+
+type discard struct{}
+
+func (discard) Write(p []byte) (int, error) { return len(p), nil }

@@ -1,0 +1,84 @@
+package ui
+
+import (
+	"time"
+
+	"bitsift/ingest"
+	"bitsift/model"
+	"bitsift/sanitize"
+)
+
+// progress is how far through its input the source is: bytes of the
+// total with an ETA when the total is known, else bytes read.
+func progress(f *ingest.Frame) string {
+	src := f.Source
+	if src.BytesTotal <= 0 {
+		return byteSize(src.BytesRead) + " read"
+	}
+	s := byteSize(src.BytesRead) + " of " + byteSize(src.BytesTotal) + " (" +
+		percent(float64(src.BytesRead)/float64(src.BytesTotal)) + ")"
+	if !f.Ended && f.BytesPerSec > 0 && src.BytesRead < src.BytesTotal {
+		eta := time.Duration(float64(src.BytesTotal-src.BytesRead) / f.BytesPerSec * float64(time.Second))
+		s += " · ETA " + span(eta)
+	}
+	return s
+}
+
+// fillText says how full the window is.
+func fillText(s *model.Snapshot) string {
+	w := s.Window
+	switch w.Kind {
+	case model.WindowRecords:
+		return "window " + windowName(w) + " " + percent(float64(s.Records)/float64(w.Records)) + " full"
+	case model.WindowDuration:
+		covered := time.Duration(s.Newest - s.Oldest)
+		return "window " + windowName(w) + " " + span(covered) + " of it"
+	}
+	return "window all · " + count(int64(s.Records)) + " rec"
+}
+
+// statusLines are the two lines always at the bottom.
+func (m Model) statusLines() [2]string {
+	st := m.e.st
+	f := m.e.frame
+	if f == nil {
+		return [2]string{st.Muted.Render(" starting…"), ""}
+	}
+	state := string(f.Source.State)
+	if state == "" {
+		state = "reading"
+	}
+	badge := st.Badge[state]
+	first := []string{" " + badge.Render("● "+state)}
+	if m.paused {
+		first[0] += " " + st.Badge["paused"].Render(" display paused ")
+	}
+	first = append(first,
+		sanitize.Fit(f.Source.Name, max(12, m.w/4)),
+		rate(f.RecordsPerSec)+" rec/s",
+		fillText(f.Snap),
+	)
+	if m.pendingWindow != nil {
+		first[len(first)-1] += st.Warn.Render(" → " + windowName(*m.pendingWindow))
+	}
+	rej := "rejected " + count(f.Snap.Input.Rejected)
+	if f.Snap.Input.Rejected > 0 {
+		rej = st.Warn.Render(rej) + st.Muted.Render(" (r)")
+	}
+	ev := "events " + count(int64(len(f.Source.Events)))
+	if len(f.Source.Events) > 0 {
+		ev = st.Warn.Render(ev) + st.Muted.Render(" (e)")
+	}
+	second := []string{" " + rej, ev, count(f.Source.Lines) + " lines", progress(f)}
+	if f.Err != nil {
+		second = append(second, st.Bad.Render(sanitize.Fit("fault: "+f.Err.Error(), m.w/2)))
+	} else if f.Source.Note != "" {
+		second = append(second, sanitize.Fit(f.Source.Note, m.w/2))
+	}
+	hint := st.Muted.Render("? keys · q quit ")
+	left := joinFit(second, st.Muted.Render(" · "), m.w-sanitize.Width(ansiStrip(hint))-1)
+	return [2]string{
+		joinFit(first, st.Muted.Render(" · "), m.w),
+		padRight(left, m.w-sanitize.Width(ansiStrip(hint))) + hint,
+	}
+}

@@ -1,0 +1,162 @@
+package ui
+
+import (
+	"bufio"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"bitsift/demo"
+)
+
+// tmuxTerm is a detached tmux session running one command at a fixed
+// size: a real terminal for the end-to-end tests.
+type tmuxTerm struct {
+	t    *testing.T
+	name string
+}
+
+func startTmux(t *testing.T, w, h int, command string) *tmuxTerm {
+	t.Helper()
+	if _, err := exec.LookPath("tmux"); err != nil {
+		t.Skip("tmux is not installed (.ci/run installs it); the end-to-end screen test needs a real terminal")
+	}
+	name := "bitsift-test-" + strconv.Itoa(os.Getpid()) + "-" + strconv.FormatInt(time.Now().UnixNano()%1e6, 10)
+	// The shell reports the exit code and the terminal's modes after the
+	// program ends, then waits to be read.
+	script := command + `; echo "EXIT=$?"; stty -a; sleep 60`
+	cmd := exec.Command("tmux", "new-session", "-d", "-s", name, "-x", strconv.Itoa(w), "-y", strconv.Itoa(h), "sh", "-c", script)
+	cmd.Env = append(os.Environ(), "TERM=xterm-256color")
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Skipf("tmux cannot start a session here (%v: %s)", err, out)
+	}
+	t.Cleanup(func() { exec.Command("tmux", "kill-session", "-t", name).Run() })
+	return &tmuxTerm{t: t, name: name}
+}
+
+func (tt *tmuxTerm) capture() string {
+	out, err := exec.Command("tmux", "capture-pane", "-p", "-t", tt.name).Output()
+	if err != nil {
+		tt.t.Fatalf("tmux capture-pane: %v", err)
+	}
+	return string(out)
+}
+
+// waitFor polls the pane until it shows every one of want.
+func (tt *tmuxTerm) waitFor(want ...string) string {
+	tt.t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	var screen string
+	for time.Now().Before(deadline) {
+		screen = tt.capture()
+		ok := true
+		for _, w := range want {
+			ok = ok && strings.Contains(screen, w)
+		}
+		if ok {
+			return screen
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	tt.t.Fatalf("the screen never showed %q; it shows:\n%s", want, screen)
+	return ""
+}
+
+func (tt *tmuxTerm) keys(keys ...string) {
+	tt.t.Helper()
+	for _, k := range keys {
+		if err := exec.Command("tmux", "send-keys", "-t", tt.name, k).Run(); err != nil {
+			tt.t.Fatalf("tmux send-keys %s: %v", k, err)
+		}
+		time.Sleep(80 * time.Millisecond)
+	}
+}
+
+// quit presses q and checks the exit code and that the terminal is back
+// in its ordinary (cooked, echoing) mode.
+func (tt *tmuxTerm) quit() {
+	tt.t.Helper()
+	tt.keys("q")
+	screen := tt.waitFor("EXIT=", "speed")
+	if !strings.Contains(screen, "EXIT=0") {
+		tt.t.Errorf("q did not exit 0:\n%s", screen)
+	}
+	for _, mode := range []string{"icanon", "echo"} {
+		if strings.Contains(screen, "-"+mode+" ") || !strings.Contains(screen, " "+mode) {
+			tt.t.Errorf("terminal mode %s not restored after quitting:\n%s", mode, screen)
+		}
+	}
+	if strings.Contains(screen, "[1 Fields]") || strings.Contains(screen, "rec/s") {
+		tt.t.Errorf("the screen is still drawn after quitting:\n%s", screen)
+	}
+}
+
+// buildBinary builds bitsift into a temporary folder.
+func buildBinary(t *testing.T) string {
+	t.Helper()
+	if _, err := exec.LookPath("tmux"); err != nil {
+		t.Skip("tmux is not installed (.ci/run installs it); the end-to-end screen test needs a real terminal")
+	}
+	bin := filepath.Join(t.TempDir(), "bitsift")
+	cmd := exec.Command("go", "build", "-o", bin, ".")
+	cmd.Dir = ".."
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	return bin
+}
+
+func TestTmuxDemo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+	}
+	bin := buildBinary(t)
+	tt := startTmux(t, 80, 24, bin)
+	tt.waitFor("[1 Fields]", "route", "rec/s", "live", "rejected 0")
+	tt.keys("2")
+	tt.waitFor("[2 Pairs]", "H(row|col)", "I(row;col)")
+	tt.keys("Tab")
+	tt.waitFor("[3 Focus", "TOP VALUES", "surprisal")
+	tt.keys("?")
+	tt.waitFor("MOVE", "SCREENS", "change window")
+	tt.keys("Escape", "1", "w")
+	tt.waitFor("window 5m") // the demo starts on 100k; w goes to the next
+	tt.keys("Space")
+	tt.waitFor("display paused")
+	tt.quit()
+}
+
+func TestTmuxReplay(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+	}
+	bin := buildBinary(t)
+	path := filepath.Join(t.TempDir(), "quayside.jsonl")
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := bufio.NewWriter(f)
+	g := demo.New(5, 30_000)
+	var buf []byte
+	for range 30_000 {
+		buf = append(g.Append(buf[:0]), '\n')
+		w.Write(buf)
+	}
+	w.WriteString("this line is not JSON\n")
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	tt := startTmux(t, 120, 40, bin+" replay "+path)
+	tt.waitFor("[1 Fields]", "zone", "host", "done", "30,001 lines", "rejected 1")
+	tt.keys("Tab")
+	tt.waitFor("[2 Pairs]")
+	tt.keys("r")
+	tt.waitFor("[4 Input]", "REJECTED  1 of 30,001 lines", "this line is not JSON")
+	tt.quit()
+}

@@ -1,0 +1,83 @@
+// Package ui is bitsift's live screen: the fields of a stream with their
+// entropy in bits, the pairs of fields and how much one tells about the
+// other, and one field up close, redrawn from the newest snapshot a few
+// times a second while ingest runs on its own goroutine.
+//
+// The root Model routes messages to one small model per screen (fields.go,
+// pairs.go, focus.go, intake.go); keys.go holds the bindings and styles.go
+// the styles, built once. Frames come from a Feed on a tick tagged with a
+// generation number, so pausing and resuming never stacks two tick loops.
+package ui
+
+import (
+	"context"
+	"time"
+
+	"github.com/charmbracelet/lipgloss"
+
+	"bitsift/ingest"
+	"bitsift/model"
+)
+
+// Feed hands out frames of a running stream; ingest.Live is one.
+type Feed interface {
+	// Frame returns the newest figures. It may wait a little; the screen
+	// calls it off its own goroutine.
+	Frame(ctx context.Context, opt model.SnapshotOptions) (*ingest.Frame, error)
+	// SetWindow asks for the figures to cover another window; it does not
+	// wait.
+	SetWindow(w model.Window)
+}
+
+// Options tune the screen. The zero value of a field means its default.
+type Options struct {
+	// Interval between frames (default and least 250 ms: at most 4 a
+	// second).
+	Interval time.Duration
+	// HistoryEvery is the spacing of the entropy history's samples
+	// (default 1 s; tests use a sample per frame with a negative value).
+	HistoryEvery time.Duration
+	// Windows are the windows the window key cycles through (default all,
+	// 10k, 100k, 5m).
+	Windows []model.Window
+	// Renderer draws the styles: it knows the terminal's colours and
+	// background (default: one for standard output).
+	Renderer *lipgloss.Renderer
+	// Context ends frame requests when done (default: never).
+	Context context.Context
+}
+
+// DefaultWindows are the windows the window key cycles through.
+var DefaultWindows = []model.Window{
+	{Kind: model.WindowAll},
+	{Kind: model.WindowRecords, Records: 10_000},
+	{Kind: model.WindowRecords, Records: 100_000},
+	{Kind: model.WindowDuration, Duration: 5 * time.Minute},
+}
+
+const minInterval = 250 * time.Millisecond
+
+func (o Options) withDefaults() Options {
+	if o.Interval < minInterval {
+		o.Interval = minInterval
+	}
+	switch {
+	case o.HistoryEvery == 0:
+		o.HistoryEvery = time.Second
+	case o.HistoryEvery < 0:
+		o.HistoryEvery = 0
+	}
+	if len(o.Windows) == 0 {
+		o.Windows = DefaultWindows
+	}
+	if o.Renderer == nil {
+		o.Renderer = lipgloss.DefaultRenderer()
+	}
+	if o.Context == nil {
+		o.Context = context.Background()
+	}
+	return o
+}
+
+// Window is model.Window, for callers that build the window cycle.
+type Window = model.Window
