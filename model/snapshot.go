@@ -21,16 +21,6 @@ const (
 	Informative Kind = "informative"
 )
 
-// Derived rule: F is derived from G when H(F|G) ≤ DerivedMaxResidual bits
-// and at most a tenth of H(F) (so a nearly constant F is not "derived" from
-// whatever), G is a tracked, non-identifier, non-constant field, and G has at
-// least DerivedMinPerValue records per value on average, so that chance
-// (one or two records per value of G) cannot explain the dependency.
-const (
-	DerivedMaxResidual = 0.01
-	DerivedMinPerValue = 8
-)
-
 // ValueCount is one value of a field and how many window records have it.
 type ValueCount struct {
 	Value  string
@@ -61,6 +51,14 @@ type FieldStats struct {
 	BestGiven   string
 	Residual    float64
 	Uncertainty float64
+	// RFI is the reliable fraction of information about F that BestGiven
+	// gives, (I(F;G) − E[I(F;G)])/H(F) (see reliable.go); EMIApprox says
+	// E[I] was approximated (the exact sum was past its work bound).
+	RFI       float64
+	EMIApprox bool
+	// Shift compares the field with the baseline; nil without one (see
+	// shift.go).
+	Shift *Shift
 	// Top holds the most frequent values, most frequent first.
 	Top []ValueCount
 }
@@ -85,6 +83,21 @@ type Snapshot struct {
 	// joint[i][j] is H(Fi,Fj) in bits for tracked pairs, NaN otherwise;
 	// i, j index Fields.
 	joint [][]float64
+	// emi[i][j] is E[I(Fi;Fj)] in bits under the permutation model for
+	// measured pairs, NaN otherwise; emiApprox[i*k+j] says it is the
+	// first-order approximation.
+	emi       [][]float64
+	emiApprox []bool
+	// Determinants are the minimal multi-field determinants found for
+	// fields no single field determines (SnapshotOptions.Deep).
+	Determinants []Determinant
+	// Changes compares the window with the baseline and lists surprising
+	// records (SnapshotOptions.Deep, or a baseline being set); nil
+	// otherwise.
+	Changes *Changes
+	// Profile is the window's profile, to serve later as a baseline
+	// (SnapshotOptions.Profile).
+	Profile *Profile
 	// LeftOutFields counts field names past the field cap, not tracked.
 	LeftOutFields int
 	// Oldest and Newest are the times of the window's first and last
@@ -160,6 +173,16 @@ func nonNeg(x float64) float64 {
 // SnapshotOptions choose what a snapshot carries besides the figures.
 type SnapshotOptions struct {
 	TopValues int // values per field in Top (default 10; < 0: none)
+	// Deep adds what needs a scan of the window's records: multi-field
+	// determinants and surprising records. It costs O(records·fields) and
+	// more (bounded, see determinants.go): take it at the end of a report
+	// or every few seconds on a screen, not every frame.
+	Deep bool
+	// Surprising is how many surprising records Deep keeps (default 10).
+	Surprising int
+	// Profile adds the window's profile (Snapshot.Profile), which a later
+	// run can use as its baseline.
+	Profile bool
 }
 
 // Snapshot copies out the current figures. It costs O(fields² + values).
@@ -218,49 +241,10 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 		s.joint[p.a][p.b] = h
 		s.joint[p.b][p.a] = h
 	}
+	m.fillEMI(s)
 	s.classify()
+	m.analyse(s, opt)
 	return s
-}
-
-// classify finds each field's best predictor and marks derived fields.
-func (s *Snapshot) classify() {
-	n := float64(s.Records)
-	for i := range s.Fields {
-		f := &s.Fields[i]
-		if f.Kind == Constant || !f.Tracked {
-			continue
-		}
-		best, bestRes := -1, math.Inf(1)
-		for j := range s.Fields {
-			g := &s.Fields[j]
-			if j == i || !s.HasPair(i, j) || g.Kind == Identifier || g.Kind == Constant {
-				continue
-			}
-			r := s.Cond(i, j)
-			// Prefer the smaller residual; among equal ones the simpler
-			// determinant (less entropy), then the name.
-			if r < bestRes-1e-12 || (math.Abs(r-bestRes) <= 1e-12 &&
-				(g.Entropy < s.Fields[best].Entropy-1e-12 ||
-					(math.Abs(g.Entropy-s.Fields[best].Entropy) <= 1e-12 && g.Name < s.Fields[best].Name))) {
-				best, bestRes = j, r
-			}
-		}
-		if best < 0 {
-			continue
-		}
-		f.BestGiven = s.Fields[best].Name
-		f.Residual = bestRes
-		if f.Entropy > 0 {
-			f.Uncertainty = s.Mutual(i, best) / f.Entropy
-		} else {
-			f.Uncertainty = 1
-		}
-		g := &s.Fields[best]
-		if f.Kind == Informative && bestRes <= DerivedMaxResidual && bestRes <= 0.1*f.Entropy &&
-			n/float64(g.Distinct) >= DerivedMinPerValue {
-			f.Kind = Derived
-		}
-	}
 }
 
 // top returns the most frequent values of f, absent included.

@@ -57,6 +57,10 @@ type Field struct {
 	BestGiven      string  `json:"best_given"`
 	Residual       float64 `json:"residual_bits"`
 	Uncertainty    float64 `json:"uncertainty_coefficient"`
+	// RFI is the reliable fraction of information best_given gives;
+	// EMIApprox says its expected mutual information was approximated.
+	RFI       float64 `json:"rfi"`
+	EMIApprox bool    `json:"emi_approx"`
 }
 
 // Pair is one ordered pair of fields.
@@ -104,6 +108,7 @@ func Build(s *model.Snapshot) *Report {
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
 			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty),
+			RFI: round(f.RFI), EMIApprox: f.EMIApprox,
 		})
 	}
 	r.Pairs = []Pair{}
