@@ -46,7 +46,8 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
-	output string
+	output   string
+	baseline string
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -59,6 +60,8 @@ end and prints every field's entropy, kind and best predictor, and the
 strongest dependencies between fields.`,
 		Example: `  bitsift report app.log
   bitsift report -o json --window 50000 app.log.zst
+  bitsift report -o json monday.log > base.json
+  bitsift report --baseline base.json tuesday.log
   kubectl logs deploy/api | bitsift report -`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -67,6 +70,7 @@ strongest dependencies between fields.`,
 	}
 	c.register(cmd, "all")
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
+	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -86,11 +90,18 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
+	if c.baseline != "" {
+		p, err := report.ReadBaseline(c.baseline)
+		if err != nil {
+			return &ExitError{Code: ExitUsage, Err: err}
+		}
+		in.Model().SetBaseline(p)
+	}
 	readErr := in.ReadFiles(ctx, paths)
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{})
+	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
 	}

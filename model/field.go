@@ -50,8 +50,10 @@ type field struct {
 
 	// tracked: the field is in pair tracking (pairs with it are kept).
 	tracked bool
-	// ident: the field is classified an identifier (with hysteresis).
-	ident bool
+	// ident: the field is classified an identifier (with hysteresis);
+	// identRounds counts the reclassifications it has stayed one.
+	ident       bool
+	identRounds int
 }
 
 func newField(name string, index int) *field {

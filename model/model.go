@@ -46,6 +46,8 @@ const (
 	identEnter      = 0.5
 	identLeave      = 0.35
 	reclassEvery    = 1024
+	hashMinDistinct = 4096
+	hashMinRounds   = 4
 )
 
 // pair is the joint table of fields a < b (indices into Model.fields).
@@ -77,6 +79,8 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+
+	base baselines
 }
 
 // New returns an empty model.
@@ -155,6 +159,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 		m.sinceReclass = 0
 		m.reclassify()
 	}
+	m.afterAdd()
 }
 
 func (m *Model) evict() {
@@ -282,10 +287,22 @@ func (m *Model) reclassify() {
 		switch {
 		case !f.ident && f.present >= identMinPresent && ratio >= identEnter:
 			f.ident = true
-			f.hashValues()
 			m.untrack(i)
 		case f.ident && f.overflowed == 0 && (ratio < identLeave || f.present == 0):
 			f.ident = false
+		}
+		// Values are hashed only once an identifier holds hashMinDistinct
+		// of them or stayed one over hashMinRounds reclassifications: a field that looks like one over its first records
+		// (a numeric field such as a latency) keeps its text, which the
+		// baseline profile, shifts and surprising records need, and stops
+		// being an identifier as the values repeat.
+		if f.ident {
+			f.identRounds++
+		} else {
+			f.identRounds = 0
+		}
+		if f.ident && f.byHash == nil && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+			f.hashValues()
 		}
 	}
 	for i, f := range m.fields {

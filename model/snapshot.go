@@ -91,6 +91,8 @@ type Snapshot struct {
 	// Determinants are the minimal multi-field determinants found for
 	// fields no single field determines (SnapshotOptions.Deep).
 	Determinants []Determinant
+	// DeterminantsCut says the search stopped at its work bound.
+	DeterminantsCut bool
 	// Changes compares the window with the baseline and lists surprising
 	// records (SnapshotOptions.Deep, or a baseline being set); nil
 	// otherwise.
@@ -185,8 +187,17 @@ type SnapshotOptions struct {
 	Profile bool
 }
 
-// Snapshot copies out the current figures. It costs O(fields² + values).
+// Snapshot copies out the current figures. It costs O(fields² + values),
+// plus the expected mutual information of each pair (bounded, see emi.go),
+// plus what opt asks for.
 func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
+	s := m.snapshot(opt)
+	m.analyse(s, opt)
+	return s
+}
+
+// snapshot is Snapshot without the analyses of analyse.
+func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 	if opt.TopValues == 0 {
 		opt.TopValues = 10
 	}
@@ -243,7 +254,6 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 	}
 	m.fillEMI(s)
 	s.classify()
-	m.analyse(s, opt)
 	return s
 }
 

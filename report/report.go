@@ -26,6 +26,22 @@ type Report struct {
 	Fields           []Field           `json:"fields"`
 	Pairs            []Pair            `json:"pairs"`
 	LeftOutFields    int               `json:"left_out_fields,omitempty"`
+
+	// Baseline is what the window was compared with (--baseline); absent
+	// without one.
+	Baseline *Baseline `json:"baseline,omitempty"`
+	// Broken lists the baseline's rules that no longer hold.
+	Broken []Broken `json:"broken"`
+	// Surprising lists the most surprising records; SurprisalAgainst says
+	// whether they were priced by the "baseline" or the "window".
+	Surprising       []Surprising `json:"surprising"`
+	SurprisalAgainst string       `json:"surprisal_against,omitempty"`
+	// Determinants lists minimal multi-field determinants.
+	Determinants    []Determinant `json:"determinants"`
+	DeterminantsCut bool          `json:"determinants_cut,omitempty"`
+	// Profile is this window's profile: give this report to --baseline
+	// of a later run to compare with it.
+	Profile *model.Profile `json:"profile,omitempty"`
 }
 
 // Window describes the window the figures cover.
@@ -61,6 +77,8 @@ type Field struct {
 	// EMIApprox says its expected mutual information was approximated.
 	RFI       float64 `json:"rfi"`
 	EMIApprox bool    `json:"emi_approx"`
+	// Shift compares the field with the baseline; absent without one.
+	Shift *Shift `json:"shift,omitempty"`
 }
 
 // Pair is one ordered pair of fields.
@@ -108,7 +126,7 @@ func Build(s *model.Snapshot) *Report {
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
 			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty),
-			RFI: round(f.RFI), EMIApprox: f.EMIApprox,
+			RFI: round(f.RFI), EMIApprox: f.EMIApprox, Shift: shiftOf(f.Shift),
 		})
 	}
 	r.Pairs = []Pair{}
@@ -123,6 +141,7 @@ func Build(s *model.Snapshot) *Report {
 			})
 		}
 	}
+	addChanges(r, s)
 	return r
 }
 
