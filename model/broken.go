@@ -3,7 +3,13 @@ package model
 import "sort"
 
 // BrokenRule is a dependency that held in the baseline (a Rule) and no
-// longer holds: H(Target|Given) is now above DerivedMaxResidual bits.
+// longer holds: H(Target|Given) is now above DerivedMaxResidual bits, or
+// window records pair a value of Given with a value of Target other than
+// the baseline's (a violation) and the rule was exact in the baseline or
+// the violations are more than one record in a thousand. The second case
+// catches a rule that still holds but maps differently (a route now sent to
+// another upstream everywhere), and a single misrouted record under a rule
+// that had no exception.
 // Examples list which value of Given now appears with a value of Target
 // other than the baseline's, and in how many window records, most first
 // (at most brokenExamples); Violations counts all such records.
@@ -38,9 +44,6 @@ func (m *Model) brokenRules(s *Snapshot, base *Profile) []BrokenRule {
 			continue
 		}
 		now := s.Cond(t, g)
-		if now <= DerivedMaxResidual {
-			continue
-		}
 		br := BrokenRule{Target: r.Target, Given: r.Given, BaselineBits: r.Bits, NowBits: round9(now)}
 		want := make(map[string]RuleValue, len(r.Map))
 		for _, v := range r.Map {
@@ -69,6 +72,9 @@ func (m *Model) brokenRules(s *Snapshot, base *Profile) []BrokenRule {
 				GivenValue: w.Given, TargetValue: tv, TargetAbsent: ti == absent, Expected: w.Target, Count: int(c),
 			})
 		})
+		if now <= DerivedMaxResidual && (br.Violations == 0 || (r.Bits > 1e-9 && br.Violations*1000 <= m.st.n)) {
+			continue
+		}
 		sort.Slice(br.Examples, func(i, j int) bool {
 			a, b := br.Examples[i], br.Examples[j]
 			if a.Count != b.Count {
