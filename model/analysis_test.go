@@ -65,7 +65,7 @@ func TestBrokenRuleOutranksRare(t *testing.T) {
 	base := build(t, Window{}, baseRows).Profile()
 	now := ruleRows(2000, rng)
 	now = append(now,
-		[]string{"route", "/b", "upstream", "alpha", "account", "acct-1"},    // breaks the rule
+		[]string{"route", "/b", "upstream", "alpha", "account", "acct-1"},   // breaks the rule
 		[]string{"route", "/b", "upstream", "beta", "account", "acct-rare"}, // merely rare
 	)
 	m := build(t, Window{}, now)
