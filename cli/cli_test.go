@@ -159,3 +159,82 @@ func TestDefaultPrintsReportWhenPiped(t *testing.T) {
 		t.Errorf("exit %d, output:\n%s", code, out)
 	}
 }
+
+// TestReportBaseline: a report of the demo stream's first 60,000 lines as
+// baseline, and a report of its incident (lines 70,001–100,000, package
+// demo) against it: the broken rule upstream|route with examples, status
+// shifted, incident records of the bad hosts first among the surprising.
+func TestReportBaseline(t *testing.T) {
+	if testing.Short() {
+		t.Skip("reads 130,000 demo lines")
+	}
+	// An endless stream has the incident where the package comment says;
+	// a stream of 100,000 lines would have it scaled down.
+	g := demo.New(1, 0)
+	lines := make([]string, 100_000)
+	for i := range lines {
+		lines[i] = string(g.Append(nil)) + "\n"
+	}
+	code, base, errs := run(t, strings.Join(lines[:60_000], ""), "report", "-o", "json", "-")
+	if code != 0 {
+		t.Fatalf("baseline: exit %d: %s", code, errs)
+	}
+	bp := write(t, "base.json", []byte(base))
+	inc := write(t, "incident.jsonl", []byte(strings.Join(lines[70_000:100_000], "")))
+	code, out, errs := run(t, "", "report", "-o", "json", "--baseline", bp, inc)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r struct {
+		Broken []struct {
+			Target, Given string
+			Examples      []struct {
+				GivenValue  string `json:"given_value"`
+				TargetValue string `json:"target_value"`
+				Count       int
+			}
+		}
+		Surprising []struct {
+			Line    int
+			Bits    float64
+			Record  map[string]string
+			Because []string
+		}
+		Fields []struct {
+			Name  string
+			Shift *struct {
+				JSD     float64 `json:"jsd_bits"`
+				Flagged bool
+			}
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Broken) == 0 || r.Broken[0].Target != "upstream" || r.Broken[0].Given != "route" ||
+		len(r.Broken[0].Examples) == 0 || r.Broken[0].Examples[0].TargetValue != "ledger" {
+		t.Errorf("broken %+v", r.Broken)
+	}
+	if len(r.Surprising) == 0 || (r.Surprising[0].Record["host"] != demo.BadHosts[0] && r.Surprising[0].Record["host"] != demo.BadHosts[1]) {
+		t.Errorf("surprising %+v", r.Surprising)
+	}
+	for _, f := range r.Fields {
+		if f.Name == "status" && (f.Shift == nil || !f.Shift.Flagged) {
+			t.Errorf("status shift %+v, want flagged", f.Shift)
+		}
+	}
+	code, text, _ := run(t, "", "report", "--baseline", bp, inc)
+	for _, want := range []string{"Broken rules", "upstream given route", "Most surprising records", "SHIFTED FIELD"} {
+		if code != 0 || !strings.Contains(text, want) {
+			t.Errorf("text report lacks %q", want)
+		}
+	}
+	for i, l := range strings.Split(text, "\n") {
+		if w := len([]rune(l)); w > 80 {
+			t.Errorf("text line %d is %d columns: %s", i+1, w, l)
+		}
+	}
+	if code, _, errs := run(t, "", "report", "--baseline", inc, inc); code != ExitUsage || !strings.Contains(errs, "baseline") {
+		t.Errorf("a non-report baseline: exit %d (%s), want %d", code, errs, ExitUsage)
+	}
+}

@@ -62,8 +62,9 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
-	live   followFlags
-	output string
+	live     followFlags
+	output   string
+	baseline string
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -81,7 +82,9 @@ come for --idle, or it is interrupted; then it prints the report.`,
 		Example: `  bitsift report app.log
   bitsift report -o json --window 50000 app.log.zst
   kubectl logs deploy/api | bitsift report -
-  bitsift report --follow --idle 4s -o json /var/log/app.log`,
+  bitsift report --follow --idle 4s -o json /var/log/app.log
+  bitsift report -o json monday.log > base.json
+  bitsift report --baseline base.json tuesday.log`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return c.run(cmd.Context(), std, args)
@@ -90,6 +93,7 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	c.register(cmd, "all")
 	c.live.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
+	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -109,6 +113,13 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
+	if c.baseline != "" {
+		p, err := report.ReadBaseline(c.baseline)
+		if err != nil {
+			return &ExitError{Code: ExitUsage, Err: err}
+		}
+		in.Model().SetBaseline(p)
+	}
 	var readErr error
 	if c.live.follow {
 		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
@@ -122,7 +133,7 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{})
+	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
 	}

@@ -50,12 +50,14 @@ type field struct {
 
 	// tracked: the field is in pair tracking (pairs with it are kept).
 	tracked bool
-	// ident: the field is classified an identifier (with hysteresis).
-	ident bool
 	// synth is set for a field bitsift makes from another (a companion).
 	synth *Synthetic
 	// timestamp: the stream's time field, never tracked (SetTimestamp).
 	timestamp bool
+	// ident: the field is classified an identifier (with hysteresis);
+	// identRounds counts the reclassifications it has stayed one.
+	ident       bool
+	identRounds int
 }
 
 func newField(name string, index int) *field {

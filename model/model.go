@@ -45,6 +45,8 @@ const (
 	identEnter      = 0.5
 	identLeave      = 0.35
 	reclassEvery    = 1024
+	hashMinDistinct = 4096
+	hashMinRounds   = 4
 )
 
 // pair is the joint table of fields a < b (indices into Model.fields).
@@ -79,6 +81,7 @@ type Model struct {
 
 	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
 	synthetic map[string]Synthetic
+	base      baselines
 }
 
 // New returns an empty model.
@@ -157,6 +160,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 		m.sinceReclass = 0
 		m.reclassify()
 	}
+	m.afterAdd()
 }
 
 func (m *Model) evict() {
@@ -287,10 +291,22 @@ func (m *Model) reclassify() {
 		switch {
 		case !f.ident && f.present >= identMinPresent && ratio >= identEnter:
 			f.ident = true
-			f.hashValues()
 			m.untrack(i)
 		case f.ident && f.overflowed == 0 && (ratio < identLeave || f.present == 0):
 			f.ident = false
+		}
+		// Values are hashed only once an identifier holds hashMinDistinct
+		// of them or stayed one over hashMinRounds reclassifications: a field that looks like one over its first records
+		// (a numeric field such as a latency) keeps its text, which the
+		// baseline profile, shifts and surprising records need, and stops
+		// being an identifier as the values repeat.
+		if f.ident {
+			f.identRounds++
+		} else {
+			f.identRounds = 0
+		}
+		if f.ident && f.byHash == nil && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+			f.hashValues()
 		}
 	}
 	for i, f := range m.fields {

@@ -23,16 +23,6 @@ const (
 	Informative Kind = "informative"
 )
 
-// Derived rule: F is derived from G when H(F|G) ≤ DerivedMaxResidual bits
-// and at most a tenth of H(F) (so a nearly constant F is not "derived" from
-// whatever), G is a tracked, non-identifier, non-constant field, and G has at
-// least DerivedMinPerValue records per value on average, so that chance
-// (one or two records per value of G) cannot explain the dependency.
-const (
-	DerivedMaxResidual = 0.01
-	DerivedMinPerValue = 8
-)
-
 // ValueCount is one value of a field and how many window records have it.
 type ValueCount struct {
 	Value  string
@@ -66,6 +56,14 @@ type FieldStats struct {
 	BestGiven   string
 	Residual    float64
 	Uncertainty float64
+	// RFI is the reliable fraction of information about F that BestGiven
+	// gives, (I(F;G) − E[I(F;G)])/H(F) (see reliable.go); EMIApprox says
+	// E[I] was approximated (the exact sum was past its work bound).
+	RFI       float64
+	EMIApprox bool
+	// Shift compares the field with the baseline; nil without one (see
+	// shift.go).
+	Shift *Shift
 	// Top holds the most frequent values, most frequent first.
 	Top []ValueCount
 	// Synthetic is set for a field that bitsift made from another field
@@ -93,6 +91,23 @@ type Snapshot struct {
 	// joint[i][j] is H(Fi,Fj) in bits for tracked pairs, NaN otherwise;
 	// i, j index Fields.
 	joint [][]float64
+	// emi[i][j] is E[I(Fi;Fj)] in bits under the permutation model for
+	// measured pairs, NaN otherwise; emiApprox[i*k+j] says it is the
+	// first-order approximation.
+	emi       [][]float64
+	emiApprox []bool
+	// Determinants are the minimal multi-field determinants found for
+	// fields no single field determines (SnapshotOptions.Deep).
+	Determinants []Determinant
+	// DeterminantsCut says the search stopped at its work bound.
+	DeterminantsCut bool
+	// Changes compares the window with the baseline and lists surprising
+	// records (SnapshotOptions.Deep, or a baseline being set); nil
+	// otherwise.
+	Changes *Changes
+	// Profile is the window's profile, to serve later as a baseline
+	// (SnapshotOptions.Profile).
+	Profile *Profile
 	// LeftOutFields counts field names past the field cap, not tracked.
 	LeftOutFields int
 	// Oldest and Newest are the times of the window's first and last
@@ -188,10 +203,29 @@ type SnapshotOptions struct {
 	// DetailRows is how many values of G, DetailTop how many values of F
 	// per value of G (defaults 8 and 5).
 	DetailRows, DetailTop int
+	// Deep adds what needs a scan of the window's records: multi-field
+	// determinants and surprising records. It costs O(records·fields) and
+	// more (bounded, see determinants.go): take it at the end of a report
+	// or every few seconds on a screen, not every frame.
+	Deep bool
+	// Surprising is how many surprising records Deep keeps (default 10).
+	Surprising int
+	// Profile adds the window's profile (Snapshot.Profile), which a later
+	// run can use as its baseline.
+	Profile bool
 }
 
-// Snapshot copies out the current figures. It costs O(fields² + values).
+// Snapshot copies out the current figures. It costs O(fields² + values),
+// plus the expected mutual information of each pair (bounded, see emi.go),
+// plus what opt asks for.
 func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
+	s := m.snapshot(opt)
+	m.analyse(s, opt)
+	return s
+}
+
+// snapshot is Snapshot without the analyses of analyse.
+func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 	if opt.TopValues == 0 {
 		opt.TopValues = 10
 	}
@@ -251,6 +285,7 @@ func (m *Model) Snapshot(opt SnapshotOptions) *Snapshot {
 		s.joint[p.a][p.b] = h
 		s.joint[p.b][p.a] = h
 	}
+	m.fillEMI(s)
 	s.classify()
 	if opt.Detail != "" {
 		s.Detail = m.snapshotDetail(s, opt)
@@ -279,47 +314,6 @@ func (m *Model) snapshotDetail(s *Snapshot, opt SnapshotOptions) *Detail {
 		top = defaultDetailTop
 	}
 	return m.detail(fi, gi, rows, top)
-}
-
-// classify finds each field's best predictor and marks derived fields.
-func (s *Snapshot) classify() {
-	n := float64(s.Records)
-	for i := range s.Fields {
-		f := &s.Fields[i]
-		if f.Kind == Constant || !f.Tracked {
-			continue
-		}
-		best, bestRes := -1, math.Inf(1)
-		for j := range s.Fields {
-			g := &s.Fields[j]
-			if j == i || !s.HasPair(i, j) || g.Kind == Identifier || g.Kind == Constant {
-				continue
-			}
-			r := s.Cond(i, j)
-			// Prefer the smaller residual; among equal ones the simpler
-			// determinant (less entropy), then the name.
-			if r < bestRes-1e-12 || (math.Abs(r-bestRes) <= 1e-12 &&
-				(g.Entropy < s.Fields[best].Entropy-1e-12 ||
-					(math.Abs(g.Entropy-s.Fields[best].Entropy) <= 1e-12 && g.Name < s.Fields[best].Name))) {
-				best, bestRes = j, r
-			}
-		}
-		if best < 0 {
-			continue
-		}
-		f.BestGiven = s.Fields[best].Name
-		f.Residual = bestRes
-		if f.Entropy > 0 {
-			f.Uncertainty = s.Mutual(i, best) / f.Entropy
-		} else {
-			f.Uncertainty = 1
-		}
-		g := &s.Fields[best]
-		if f.Kind == Informative && bestRes <= DerivedMaxResidual && bestRes <= 0.1*f.Entropy &&
-			n/float64(g.Distinct) >= DerivedMinPerValue {
-			f.Kind = Derived
-		}
-	}
 }
 
 // top returns the most frequent values of f, absent included.

@@ -132,6 +132,7 @@ func WriteText(w io.Writer, r *Report) error {
 				sanitize.Fit(d.Target, 24), sanitize.Fit(d.Given, 24), d.U, d.Residual, mark)
 		}
 	}
+	writeChanges(b, r)
 	if r.LeftOutFields > 0 {
 		fmt.Fprintf(b, "\n%d field names past the field cap were not tracked.\n", r.LeftOutFields)
 	}

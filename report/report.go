@@ -33,6 +33,22 @@ type Report struct {
 	// Events are what happened to the sources while they were read:
 	// rotations, truncations, missing files, shortened replay gaps, faults.
 	Events []Event `json:"events"`
+
+	// Baseline is what the window was compared with (--baseline); absent
+	// without one.
+	Baseline *Baseline `json:"baseline,omitempty"`
+	// Broken lists the baseline's rules that no longer hold.
+	Broken []Broken `json:"broken"`
+	// Surprising lists the most surprising records; SurprisalAgainst says
+	// whether they were priced by the "baseline" or the "window".
+	Surprising       []Surprising `json:"surprising"`
+	SurprisalAgainst string       `json:"surprisal_against,omitempty"`
+	// Determinants lists minimal multi-field determinants.
+	Determinants    []Determinant `json:"determinants"`
+	DeterminantsCut bool          `json:"determinants_cut,omitempty"`
+	// Profile is this window's profile: give this report to --baseline
+	// of a later run to compare with it.
+	Profile *model.Profile `json:"profile,omitempty"`
 }
 
 // Event is one thing that happened to a source.
@@ -85,6 +101,12 @@ type Field struct {
 	// Timestamp: the stream's timestamp field, left out of pairs and best
 	// predictors (--analyse-time includes it).
 	Timestamp bool `json:"timestamp"`
+	// RFI is the reliable fraction of information best_given gives;
+	// EMIApprox says its expected mutual information was approximated.
+	RFI       float64 `json:"rfi"`
+	EMIApprox bool    `json:"emi_approx"`
+	// Shift compares the field with the baseline; absent without one.
+	Shift *Shift `json:"shift,omitempty"`
 }
 
 // Pair is one ordered pair of fields.
@@ -139,6 +161,7 @@ func Build(s *model.Snapshot) *Report {
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
 			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
+			RFI: round(f.RFI), EMIApprox: f.EMIApprox, Shift: shiftOf(f.Shift),
 		}
 		if f.Synthetic != nil {
 			rf.Synthetic, rf.DerivedFrom, rf.DerivedBy = true, f.Synthetic.Source, f.Synthetic.Method
@@ -157,6 +180,7 @@ func Build(s *model.Snapshot) *Report {
 			})
 		}
 	}
+	addChanges(r, s)
 	return r
 }
 

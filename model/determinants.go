@@ -1,0 +1,479 @@
+package model
+
+import (
+	"math"
+	"sort"
+)
+
+// Multi-field determinants. For each informative field F (no single field
+// determines it), the search looks for sets X of two, then three, fields
+// with H(F|X) ≤ DerivedMaxResidual, at most a tenth of H(F), and
+// RFI(X→F) ≥ DerivedMinRFI: the derived rule, with X's combinations as the
+// values of one field. H(F|X) is exact over the window's records: the
+// records are grouped by their X values (a partition, as in TANE: Huhtala,
+// Kärkkäinen, Porkka and Toivonen, "TANE: An Efficient Algorithm for
+// Discovering Functional and Approximate Dependencies", The Computer
+// Journal 42(2), 1999) and F's values counted per group.
+//
+// Pruning, after TANE:
+//   - only minimal determinants: a set containing a determinant of F is not
+//     tried for F;
+//   - a set whose partition has fewer than detMinPerGroup records per group
+//     on average is a near-key (it "determines" anything by chance; RFI
+//     would reject it too) and is dropped with every superset. Its product
+//     of cardinalities bounds its groups from above, so a set whose product
+//     is at most N/detMinPerGroup is never a near-key;
+//   - a set where one member determines another has the partition of the
+//     smaller set, already tried.
+//
+// Candidates are the non-identifier, non-constant fields, at most
+// detMaxCandidates (fewest values first); sets of three are tried only
+// among at most detMaxTriple candidates. The work (record visits) is capped
+// at detMaxWork; past it the search stops and Snapshot.DeterminantsCut says
+// so. The search runs only for Deep snapshots.
+const (
+	detMinPerGroup   = 8
+	detMaxCandidates = 16
+	detMaxTriple     = 10
+	detMaxWork       = 60_000_000
+	detDenseCells    = 1 << 20
+)
+
+// Determinant is a minimal set of fields that together determine Target.
+type Determinant struct {
+	Target    string
+	Given     []string
+	Bits      float64 // H(Target|Given)
+	RFI       float64
+	EMIApprox bool
+}
+
+// partition groups the window's records: group[r] is record r's group.
+type partition struct {
+	group  []int32
+	sizes  []int32
+	order  []int32 // records sorted by group
+	starts []int32 // order[starts[g]:starts[g+1]] are group g's records
+}
+
+type detSearch struct {
+	m      *Model
+	s      *Snapshot
+	work   int
+	cut    bool
+	found  map[int][][]int // target → its determinants
+	out    []Determinant
+	scrat  []int32
+	touch  []int32
+	dense  []int32
+	lookup []int32
+	cols   map[int][]uint32
+	fHists map[int]countHist
+}
+
+// determinants runs the search (see above).
+func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
+	n := m.st.n
+	if n < 2*detMinPerGroup {
+		return []Determinant{}, false
+	}
+	var cands, targets []int
+	for i := range s.Fields {
+		f := &s.Fields[i]
+		if f.Kind == Identifier || f.Kind == Constant {
+			continue
+		}
+		cands = append(cands, i)
+		if f.Kind == Informative && f.Distinct*detMinPerGroup <= n {
+			targets = append(targets, i)
+		}
+	}
+	sort.SliceStable(cands, func(a, b int) bool { return s.Fields[cands[a]].Distinct < s.Fields[cands[b]].Distinct })
+	if len(cands) > detMaxCandidates {
+		cands = cands[:detMaxCandidates]
+	}
+	d := &detSearch{m: m, s: s, found: map[int][][]int{}, fHists: map[int]countHist{}, cols: map[int][]uint32{}}
+	if len(targets) == 0 || len(cands) < 2 {
+		return []Determinant{}, false
+	}
+	nearKey := map[[2]int]bool{}
+	type sub struct {
+		p *partition
+		h map[int]float64 // target → H(target|pair)
+	}
+	pairs := map[[2]int]sub{}
+	triples := len(cands) <= detMaxTriple
+	for x := 0; x < len(cands) && !d.cut; x++ {
+		for y := x + 1; y < len(cands) && !d.cut; y++ {
+			a, b := cands[x], cands[y]
+			if d.redundant(a, b) {
+				continue
+			}
+			if g := d.pairCells(a, b); g*detMinPerGroup > n {
+				nearKey[[2]int{a, b}] = true
+				continue
+			}
+			var open []int
+			for _, t := range targets {
+				if t != a && t != b && d.pairBound(t, a, b) <= DerivedMaxResidual {
+					open = append(open, t)
+				}
+			}
+			if len(open) == 0 && !triples {
+				continue
+			}
+			p := d.refine(nil, a, b)
+			if p == nil {
+				continue
+			}
+			if len(p.sizes)*detMinPerGroup > n {
+				nearKey[[2]int{a, b}] = true
+				continue
+			}
+			h := d.tryTargets(p, []int{a, b}, open)
+			if triples {
+				// Targets not tried are bounded away from a determinant
+				// by more than H(c|a) can close for most c; try them
+				// at the triple level with the exact figure.
+				for _, t := range targets {
+					if _, ok := h[t]; !ok && t != a && t != b {
+						h[t] = math.NaN()
+					}
+				}
+				pairs[[2]int{a, b}] = sub{p, h}
+			}
+		}
+	}
+	if triples {
+		for x := 0; x < len(cands) && !d.cut; x++ {
+			for y := x + 1; y < len(cands) && !d.cut; y++ {
+				p2, ok := pairs[[2]int{cands[x], cands[y]}]
+				if !ok {
+					continue
+				}
+				for z := y + 1; z < len(cands) && !d.cut; z++ {
+					a, b, c := cands[x], cands[y], cands[z]
+					if nearKey[[2]int{a, c}] || nearKey[[2]int{b, c}] || d.redundant(a, c) || d.redundant(b, c) {
+						continue
+					}
+					set := []int{a, b, c}
+					var open []int
+					for t, h2 := range p2.h {
+						if t == c || d.coveredFor(t, set) {
+							continue
+						}
+						// H(t|a,b,c) ≥ H(t|a,b) − H(c|a,b) ≥ H(t|a,b) − min(H(c|a), H(c|b)).
+						lb := h2 - math.Min(d.cond(c, a), d.cond(c, b))
+						if math.IsNaN(h2) {
+							lb = d.pairBound(t, a, c)
+						}
+						if lb <= DerivedMaxResidual {
+							open = append(open, t)
+						}
+					}
+					if len(open) == 0 {
+						continue
+					}
+					sort.Ints(open)
+					p := d.refine(p2.p, c, -1)
+					if p == nil || len(p.sizes)*detMinPerGroup > n {
+						continue
+					}
+					d.tryTargets(p, set, open)
+				}
+			}
+		}
+	}
+	sort.Slice(d.out, func(i, j int) bool {
+		if d.out[i].Target != d.out[j].Target {
+			return d.out[i].Target < d.out[j].Target
+		}
+		if len(d.out[i].Given) != len(d.out[j].Given) {
+			return len(d.out[i].Given) < len(d.out[j].Given)
+		}
+		return d.out[i].Bits < d.out[j].Bits
+	})
+	if d.out == nil {
+		d.out = []Determinant{}
+	}
+	return d.out, d.cut
+}
+
+// cond is H(Fi|Fj) from the pair tables, +Inf when not measured.
+func (d *detSearch) cond(i, j int) float64 {
+	if !d.s.HasPair(i, j) {
+		return math.Inf(1)
+	}
+	return d.s.Cond(i, j)
+}
+
+// pairBound is a lower bound of H(t|a,b) from the pair tables:
+// H(t|a,b) ≥ H(t|a) − H(b|a), and the same with a and b swapped. It is 0
+// (no bound) when the tables are missing.
+func (d *detSearch) pairBound(t, a, b int) float64 {
+	lb := 0.0
+	if d.s.HasPair(t, a) {
+		lb = math.Max(lb, d.cond(t, a)-d.cond(b, a))
+	}
+	if d.s.HasPair(t, b) {
+		lb = math.Max(lb, d.cond(t, b)-d.cond(a, b))
+	}
+	return lb
+}
+
+// pairCells is the number of value combinations of a and b in the window
+// (the cells of their pair table), 0 when they are not paired.
+func (d *detSearch) pairCells(a, b int) int {
+	i, ok := d.m.pairAt[[2]int{min(a, b), max(a, b)}]
+	if !ok {
+		return 0
+	}
+	return d.m.pairs[i].m.len
+}
+
+// redundant: one of a, b determines the other exactly, so {a,b} groups the
+// records as one of them alone.
+func (d *detSearch) redundant(a, b int) bool {
+	s := d.s
+	return s.HasPair(a, b) && (s.Cond(a, b) < 1e-12 || s.Cond(b, a) < 1e-12)
+}
+
+// coveredFor: a determinant of t already found lies within set.
+func (d *detSearch) coveredFor(t int, set []int) bool {
+	for _, det := range d.found[t] {
+		all := true
+		for _, g := range det {
+			in := false
+			for _, x := range set {
+				in = in || x == g
+			}
+			all = all && in
+		}
+		if all {
+			return true
+		}
+	}
+	return false
+}
+
+// refine returns the partition of base (nil: all records in one group) by
+// field a, then by field b (b < 0: none). nil when over the work cap.
+func (d *detSearch) refine(base *partition, a, b int) *partition {
+	m := d.m
+	n := m.st.n
+	if d.spend(n) {
+		return nil
+	}
+	ca := d.column(a)
+	var cb []uint32
+	if b >= 0 {
+		cb = d.column(b)
+	}
+	group := make([]int32, n)
+	var sizes []int32
+	// Dense lookup of (left, right) → group+1 when the key space is small.
+	left, right := 0, len(d.m.fields[a].counts)+1
+	if base != nil {
+		left = len(base.sizes)
+	} else {
+		left, right = right, len(d.m.fields[b].counts)+1
+	}
+	if left*right <= detDenseCells {
+		if cap(d.lookup) < left*right {
+			d.lookup = make([]int32, left*right)
+		}
+		look := d.lookup[:left*right]
+		clear(look)
+		fold := func(id uint32, k int) int {
+			if id == overflow {
+				return k - 1
+			}
+			return int(id)
+		}
+		for r := 0; r < n; r++ {
+			var k int
+			if base != nil {
+				k = int(base.group[r])*right + fold(ca[r], right)
+			} else {
+				k = fold(ca[r], left)*right + fold(cb[r], right)
+			}
+			g := look[k] - 1
+			if g < 0 {
+				g = int32(len(sizes))
+				look[k] = g + 1
+				sizes = append(sizes, 0)
+			}
+			sizes[g]++
+			group[r] = g
+		}
+		return newPartition(group, sizes)
+	}
+	ids := make(map[uint64]int32)
+	for r := 0; r < n; r++ {
+		var k uint64
+		if base != nil {
+			k = uint64(base.group[r])<<32 | uint64(ca[r])
+		} else {
+			k = uint64(ca[r])<<32 | uint64(cb[r])
+		}
+		g, ok := ids[k]
+		if !ok {
+			g = int32(len(sizes))
+			ids[k] = g
+			sizes = append(sizes, 0)
+		}
+		sizes[g]++
+		group[r] = g
+	}
+	return newPartition(group, sizes)
+}
+
+func newPartition(group, sizes []int32) *partition {
+	n := len(group)
+	p := &partition{group: group, sizes: sizes}
+	p.starts = make([]int32, len(sizes)+1)
+	for g, c := range sizes {
+		p.starts[g+1] = p.starts[g] + c
+	}
+	next := append([]int32(nil), p.starts[:len(sizes)]...)
+	p.order = make([]int32, n)
+	for r, g := range group {
+		p.order[next[g]] = int32(r)
+		next[g]++
+	}
+	return p
+}
+
+func (d *detSearch) spend(w int) bool {
+	d.work += w
+	if d.work > detMaxWork {
+		d.cut = true
+	}
+	return d.cut
+}
+
+// column returns field i's value ids, one per window record, oldest first.
+func (d *detSearch) column(i int) []uint32 {
+	if c, ok := d.cols[i]; ok {
+		return c
+	}
+	n := d.m.st.n
+	c := make([]uint32, n)
+	for r := 0; r < n; r++ {
+		c[r] = idAt(d.m.st.row(r), i)
+	}
+	d.cols[i] = c
+	return c
+}
+
+// tryTargets measures H(t|set) for each target outside set, keeps the
+// determinants, and returns the figures measured.
+func (d *detSearch) tryTargets(p *partition, set []int, targets []int) map[int]float64 {
+	m, s := d.m, d.s
+	n := float64(m.st.n)
+	sx := 0.0
+	for _, c := range p.sizes {
+		sx += clogf(c)
+	}
+	got := map[int]float64{}
+	var xh *countHist
+	for _, t := range targets {
+		skip := false
+		for _, g := range set {
+			skip = skip || g == t
+		}
+		if skip || d.coveredFor(t, set) || d.spend(m.st.n) {
+			continue
+		}
+		h := nonNeg((sx - d.jointS(p, t)) / n)
+		got[t] = h
+		ft := &s.Fields[t]
+		if h > DerivedMaxResidual || h > 0.1*ft.Entropy || ft.Entropy <= 0 {
+			continue
+		}
+		if xh == nil {
+			v := histOf(int32s(p.sizes))
+			xh = &v
+		}
+		fh, ok := d.fHists[t]
+		if !ok {
+			fh = histOf(m.fieldCounts(m.fields[t]))
+			d.fHists[t] = fh
+		}
+		emi, approx := expectedMI(fh, *xh)
+		rfi := (ft.Entropy - h - emi) / ft.Entropy
+		if rfi < DerivedMinRFI {
+			continue
+		}
+		names := make([]string, len(set))
+		for i, g := range set {
+			names[i] = m.fields[g].name
+		}
+		d.found[t] = append(d.found[t], append([]int(nil), set...))
+		d.out = append(d.out, Determinant{Target: ft.Name, Given: names, Bits: round9(h), RFI: round9(rfi), EMIApprox: approx})
+	}
+	return got
+}
+
+// jointS is Σ c·log2 c over the cells (group, value of t): one pass over
+// the records into a dense table when groups × values is small, else group
+// by group along the partition's order.
+func (d *detSearch) jointS(p *partition, t int) float64 {
+	col := d.column(t)
+	k := len(d.m.fields[t].counts) + 1 // ids 0..len-1, and overflow folded to the last
+	fold := func(id uint32) int {
+		if id == overflow {
+			return k - 1
+		}
+		return int(id)
+	}
+	sxf := 0.0
+	if cells := len(p.sizes) * k; cells <= detDenseCells {
+		if cap(d.dense) < cells {
+			d.dense = make([]int32, cells)
+		}
+		tab := d.dense[:cells]
+		clear(tab)
+		for r, g := range p.group {
+			tab[int(g)*k+fold(col[r])]++
+		}
+		for _, c := range tab {
+			sxf += clogf(c)
+		}
+		return sxf
+	}
+	if len(d.scrat) < k {
+		d.scrat = make([]int32, k)
+	}
+	for g := range p.sizes {
+		for _, r := range p.order[p.starts[g]:p.starts[g+1]] {
+			id := fold(col[r])
+			if d.scrat[id] == 0 {
+				d.touch = append(d.touch, int32(id))
+			}
+			d.scrat[id]++
+		}
+		for _, id := range d.touch {
+			sxf += clogf(d.scrat[id])
+			d.scrat[id] = 0
+		}
+		d.touch = d.touch[:0]
+	}
+	return sxf
+}
+
+func clogf(c int32) float64 {
+	if c <= 1 {
+		return 0
+	}
+	x := float64(c)
+	return x * math.Log2(x)
+}
+
+func int32s(v []int32) []int {
+	out := make([]int, len(v))
+	for i, x := range v {
+		out[i] = int(x)
+	}
+	return out
+}

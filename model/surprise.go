@@ -1,0 +1,333 @@
+package model
+
+import (
+	"container/heap"
+	"math"
+	"sort"
+)
+
+// Surprisal. A record's surprisal is Σ over its non-identifier fields of
+// −log2 p(value | the value of the field's best predictor), in bits.
+//
+// Against the window (no baseline) p is read off the window's own tables:
+// c(g,f)/c(g) for the best predictor G, c(f)/N for a field with none.
+//
+// Against a baseline: where the baseline has a rule G → F (see Rule; the
+// one with F's baseline best predictor as Given if there is one) and the
+// record's G value is in its mapping, a value that follows the rule costs
+// −log2((n_g+1)/(n_g+2)) (Laplace's rule of succession over the n_g
+// baseline records with that G value) and one that breaks it costs
+// log2(N_b+2) + log2(K_F+1): the rule held over all N_b baseline records,
+// so by the rule of succession a break has probability 1/(N_b+2), spread
+// over the field's K_F baseline values and one new one. Otherwise the
+// baseline's distribution of F, smoothed additively with the
+// Krichevsky–Trofimov pseudo-count 1/2 per value (K_F baseline values plus
+// one for all unseen ones): p = (c + ½)/(N_b + ½(K_F+1)); a value past the
+// baseline's listed ones gets the mean count of the unlisted values.
+//
+// So a break costs more than any value seen in the baseline, however rare
+// (at most log2(2N_b/3) bits), and outranks a merely rare record.
+//
+// The scan covers the newest surpriseMaxRows records of the window:
+// O(records·fields) table lookups per snapshot that asks for it (Deep).
+const (
+	surprisePseudo  = 0.5
+	surpriseMaxRows = 1 << 19
+	surpriseBecause = 3
+	// surpriseExcess: a field is named in "because" when it cost at least
+	// this many bits more than its mean over the scanned records.
+	surpriseExcess = 1.0
+)
+
+// SurprisingRecord is one of the most surprising records of the window.
+type SurprisingRecord struct {
+	Line int64
+	Bits float64
+	// Record holds the values of the record's non-identifier fields.
+	Record map[string]string
+	// Because lists the fields that made it surprising, most first.
+	Because []Contribution
+}
+
+// Contribution is one field's share of a record's surprisal.
+type Contribution struct {
+	Field string
+	Bits  float64 // the field's surprisal in this record
+	// Excess is Bits minus the field's mean surprisal over the window.
+	Excess float64
+	// Broke names the Given of the baseline rule this value broke ("" if
+	// none).
+	Broke string
+}
+
+// fieldCost prices the values of one field.
+type fieldCost struct {
+	idx  int
+	marg []float64 // by current value id; [0] is absent
+
+	// A baseline rule given → this field.
+	given   int
+	expect  []int64   // by given id: target id; noRule: use marg; anyBreaks: no target matches
+	match   []float64 // by given id
+	violate float64
+
+	// The window's best-predictor table.
+	pair     *cellMap
+	givenIsA bool
+	gCount   []float64 // by given id: records with it
+}
+
+const (
+	noRule    = -1
+	anyBreaks = -2
+)
+
+// cost is the surprisal of the field in row, and whether it broke the rule.
+func (c *fieldCost) cost(row []uint32) (float64, bool) {
+	id := idAt(row, c.idx)
+	if c.given >= 0 {
+		if gid := idAt(row, c.given); int(gid) < len(c.expect) {
+			switch e := c.expect[gid]; {
+			case e == int64(id):
+				return c.match[gid], false
+			case e != noRule:
+				return c.violate, true
+			}
+		}
+	}
+	if c.pair != nil {
+		gid := idAt(row, c.given)
+		k := uint64(gid)<<32 | uint64(id)
+		if !c.givenIsA {
+			k = uint64(id)<<32 | uint64(gid)
+		}
+		n := c.pair.get(k)
+		if n > 0 && int(gid) < len(c.gCount) && c.gCount[gid] > 0 {
+			return -math.Log2(float64(n) / c.gCount[gid]), false
+		}
+	}
+	if int(id) < len(c.marg) {
+		return c.marg[id], false
+	}
+	return 0, false
+}
+
+// surprising returns the k most surprising records of the window.
+func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord {
+	var costs []*fieldCost
+	for i, f := range m.fields {
+		if s.Fields[i].Kind == Identifier || f.text == nil || s.Fields[i].Kind == Constant && base == nil {
+			continue
+		}
+		var c *fieldCost
+		if base != nil {
+			c = m.baselineCost(s, base, i)
+		} else {
+			c = m.windowCost(s, i)
+		}
+		costs = append(costs, c)
+	}
+	if len(costs) == 0 || m.st.n == 0 || k <= 0 {
+		return []SurprisingRecord{}
+	}
+	rows := min(m.st.n, surpriseMaxRows)
+	sum := make([]float64, len(costs))
+	h := &recHeap{}
+	for r := m.st.n - rows; r < m.st.n; r++ {
+		row := m.st.row(r)
+		total := 0.0
+		for j, c := range costs {
+			v, _ := c.cost(row)
+			sum[j] += v
+			total += v
+		}
+		line := m.st.metaAt(r).line
+		if h.Len() < k {
+			heap.Push(h, scored{r, line, total})
+		} else if (*h)[0].less(scored{r, line, total}) {
+			(*h)[0] = scored{r, line, total}
+			heap.Fix(h, 0)
+		}
+	}
+	top := []scored(*h)
+	sort.Slice(top, func(i, j int) bool { return top[j].less(top[i]) })
+	out := make([]SurprisingRecord, 0, len(top))
+	for _, t := range top {
+		row := m.st.row(t.row)
+		sr := SurprisingRecord{Line: t.line, Bits: round9(t.bits), Record: map[string]string{}}
+		for i, f := range m.fields {
+			if id := idAt(row, i); id != absent && s.Fields[i].Kind != Identifier && f.text != nil && id != overflow {
+				sr.Record[f.name] = f.text[id]
+			}
+		}
+		for j, c := range costs {
+			v, broke := c.cost(row)
+			ex := v - sum[j]/float64(rows)
+			if ex < surpriseExcess {
+				continue
+			}
+			ct := Contribution{Field: m.fields[c.idx].name, Bits: round9(v), Excess: round9(ex)}
+			if broke {
+				ct.Broke = m.fields[c.given].name
+			}
+			sr.Because = append(sr.Because, ct)
+		}
+		sort.Slice(sr.Because, func(i, j int) bool { return sr.Because[i].Excess > sr.Because[j].Excess })
+		if len(sr.Because) > surpriseBecause {
+			sr.Because = sr.Because[:surpriseBecause]
+		}
+		out = append(out, sr)
+	}
+	return out
+}
+
+// windowCost prices field i by the window's own counts.
+func (m *Model) windowCost(s *Snapshot, i int) *fieldCost {
+	f := m.fields[i]
+	c := &fieldCost{idx: i, given: -1, marg: make([]float64, len(f.counts))}
+	n := float64(m.st.n)
+	if a := m.st.n - int(f.present); a > 0 {
+		c.marg[0] = -math.Log2(float64(a) / n)
+	}
+	for id := 1; id < len(f.counts); id++ {
+		if f.counts[id] > 0 {
+			c.marg[id] = -math.Log2(float64(f.counts[id]) / n)
+		}
+	}
+	if g := s.Index(s.Fields[i].BestGiven); g >= 0 && s.HasPair(i, g) {
+		c.given = g
+		c.pair = m.pairs[m.pairAt[[2]int{min(i, g), max(i, g)}]].m
+		c.givenIsA = g < i
+		gf := m.fields[g]
+		c.gCount = make([]float64, len(gf.counts))
+		c.gCount[0] = float64(m.st.n - int(gf.present))
+		for id := 1; id < len(gf.counts); id++ {
+			c.gCount[id] = float64(gf.counts[id])
+		}
+	}
+	return c
+}
+
+// baselineCost prices field i by the baseline (see Surprisal).
+func (m *Model) baselineCost(s *Snapshot, base *Profile, i int) *fieldCost {
+	f := m.fields[i]
+	bp := base.Field(f.name)
+	if bp == nil {
+		bp = &FieldProfile{Name: f.name, Absent: base.Records, Top: []ProfileValue{}}
+	}
+	nb := float64(base.Records)
+	kb := float64(bp.Distinct)
+	denom := nb + surprisePseudo*(kb+1)
+	listed := map[string]int{}
+	for _, v := range bp.Top {
+		listed[v.Value] = v.Count
+	}
+	unlisted := 0.0
+	if bp.Other > 0 {
+		k := bp.Distinct - len(bp.Top)
+		if bp.Absent > 0 {
+			k--
+		}
+		unlisted = float64(bp.Other) / float64(max(k, 1))
+	}
+	c := &fieldCost{idx: i, given: -1, marg: make([]float64, len(f.counts))}
+	c.marg[0] = -math.Log2((float64(bp.Absent) + surprisePseudo) / denom)
+	for id := 1; id < len(f.counts); id++ {
+		if f.counts[id] == 0 {
+			continue
+		}
+		n, ok := listed[f.text[id]]
+		cnt := float64(n)
+		if !ok {
+			cnt = unlisted
+		}
+		c.marg[id] = -math.Log2((cnt + surprisePseudo) / denom)
+	}
+	r := pickRule(base, bp)
+	if r == nil {
+		return c
+	}
+	g := s.Index(r.Given)
+	if g < 0 || m.fields[g].text == nil {
+		return c
+	}
+	gf := m.fields[g]
+	want := make(map[string]RuleValue, len(r.Map))
+	for _, v := range r.Map {
+		want[v.Given] = v
+	}
+	c.given = g
+	c.violate = math.Log2(nb+2) + math.Log2(kb+1)
+	c.expect = make([]int64, len(gf.counts))
+	c.match = make([]float64, len(gf.counts))
+	c.expect[0] = noRule
+	for id := 1; id < len(gf.counts); id++ {
+		c.expect[id] = noRule
+		if gf.counts[id] == 0 {
+			continue
+		}
+		w, ok := want[gf.text[id]]
+		if !ok {
+			continue
+		}
+		switch tid, found := f.values[w.Target]; {
+		case w.Absent:
+			c.expect[id] = absent
+		case found:
+			c.expect[id] = int64(tid)
+		default:
+			c.expect[id] = anyBreaks
+		}
+		ng := float64(w.Count)
+		c.match[id] = -math.Log2((ng + 1) / (ng + 2))
+	}
+	return c
+}
+
+// pickRule is the baseline rule that prices bp's field: the one given its
+// baseline best predictor, else the one that held best.
+func pickRule(base *Profile, bp *FieldProfile) *Rule {
+	var best *Rule
+	for i := range base.Rules {
+		r := &base.Rules[i]
+		if r.Target != bp.Name {
+			continue
+		}
+		if r.Given == bp.BestGiven {
+			return r
+		}
+		if best == nil || r.Bits < best.Bits || (r.Bits == best.Bits && r.RFI > best.RFI) {
+			best = r
+		}
+	}
+	return best
+}
+
+type scored struct {
+	row  int
+	line int64
+	bits float64
+}
+
+// less orders by surprisal, then later lines first (a tie goes to the
+// newer record).
+func (a scored) less(b scored) bool {
+	if a.bits != b.bits {
+		return a.bits < b.bits
+	}
+	return a.line < b.line
+}
+
+// recHeap is a min-heap of the kept records: the least surprising on top.
+type recHeap []scored
+
+func (h recHeap) Len() int           { return len(h) }
+func (h recHeap) Less(i, j int) bool { return h[i].less(h[j]) }
+func (h recHeap) Swap(i, j int)      { h[i], h[j] = h[j], h[i] }
+func (h *recHeap) Push(x any)        { *h = append(*h, x.(scored)) }
+func (h *recHeap) Pop() any {
+	old := *h
+	x := old[len(old)-1]
+	*h = old[:len(old)-1]
+	return x
+}
