@@ -89,7 +89,7 @@ With no command it runs on a built-in demo stream.`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &ExitError{Code: ExitUsage, Err: fmt.Errorf("%w (see %s --help)", err, c.CommandPath())}
 	})
-	root.AddCommand(newReportCmd(std), newDemoCmd(std))
+	root.AddCommand(newReportCmd(std), newDemoCmd(std), newPlanCmd(std))
 	return root
 }
 

@@ -8,6 +8,7 @@ import (
 	"sort"
 
 	"bitsift/model"
+	"bitsift/plan"
 )
 
 // Schema is the version tag of the JSON report. Fields may be added within a
@@ -26,6 +27,10 @@ type Report struct {
 	Fields           []Field           `json:"fields"`
 	Pairs            []Pair            `json:"pairs"`
 	LeftOutFields    int               `json:"left_out_fields,omitempty"`
+
+	// choice is the drop plan chosen from the snapshot alone, for the HTML
+	// page (bitsift plan measures one).
+	choice *plan.Plan
 }
 
 // Window describes the window the figures cover.
@@ -96,6 +101,7 @@ func Build(s *model.Snapshot) *Report {
 	default:
 		r.Window.Size = s.Records
 	}
+	r.choice = plan.Choose(s, plan.Options{})
 	order := sortedFields(s)
 	for _, i := range order {
 		f := &s.Fields[i]
