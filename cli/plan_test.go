@@ -19,11 +19,11 @@ import (
 // planJSON is the part of bitsift.plan/1 the tests read; the names are the
 // issue's schema.
 type planJSON struct {
-	Schema   string   `json:"schema"`
-	Records  int      `json:"records"`
-	MaxLoss  *float64 `json:"max_loss_bits"`
-	Drop     []string `json:"drop"`
-	Derive   []struct {
+	Schema  string   `json:"schema"`
+	Records int      `json:"records"`
+	MaxLoss *float64 `json:"max_loss_bits"`
+	Drop    []string `json:"drop"`
+	Derive  []struct {
 		Field        string   `json:"field"`
 		From         []string `json:"from"`
 		TableEntries *int     `json:"table_entries"`
