@@ -140,7 +140,7 @@ func buildHeat(r *Report) *heatMap {
 	if len(names) < 2 {
 		return nil
 	}
-	const cell, margin = 18, 150
+	const cell, margin = 22, 130
 	h := &heatMap{Cell: cell, Margin: margin, Size: margin + cell*len(names) + 10}
 	for i, n := range names {
 		label := sanitize.Fit(n, 22)
