@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"strings"
 	"testing"
 
 	"bitsift/demo"
@@ -65,5 +66,66 @@ func TestDemoPlan(t *testing.T) {
 	t.Logf("before %+v after %+v tables %+v rate %v bound %v→%v notes %v", m.Before, m.After, m.Tables, p.RecordsPerSecond, p.EntropyBefore, p.EntropyAfter, p.Notes)
 	for _, f := range p.Fields {
 		t.Logf("%-14s %-7s %-40s H=%.3f sH=%.3f L=%.3f table=%d", f.Name, f.Action, f.Reason, f.Entropy, f.SampleEntropy, f.Huffman, f.TableEntries)
+	}
+}
+
+// TestSampleRing: the sample keeps the newest lines, in order, within its
+// caps, and a clone is independent.
+func TestSampleRing(t *testing.T) {
+	s := NewSample(3)
+	for _, l := range []string{"a", "", "b", "c", "d", "e"} {
+		s.Add([]byte(l))
+	}
+	c := s.Clone()
+	s.Add([]byte("f"))
+	var got []string
+	c.each(func(l []byte) { got = append(got, string(l)) })
+	if strings.Join(got, ",") != "c,d,e" {
+		t.Errorf("clone holds %v, want c,d,e", got)
+	}
+	s.Keep(1)
+	got = nil
+	s.each(func(l []byte) { got = append(got, string(l)) })
+	if strings.Join(got, ",") != "f" || s.bytes != 1 {
+		t.Errorf("after Keep(1): %v (%d bytes)", got, s.bytes)
+	}
+	c.Add([]byte("g"))
+	if c.Len() != 3 {
+		t.Errorf("clone grew to %d lines", c.Len())
+	}
+}
+
+// BenchmarkMake is the plan of 20,000 demo records: choose, serialise
+// twice, compress, rebuild.
+func BenchmarkMake(b *testing.B) {
+	in, _ := ingest.New(ingest.Config{})
+	smp := NewSample(0)
+	g := demo.New(1, 20_000)
+	for i := int64(1); i <= 20_000; i++ {
+		l := g.Append(nil)
+		in.Line(l, i, "demo")
+		smp.Add(l)
+	}
+	in.Flush()
+	snap := in.Snapshot(model.SnapshotOptions{})
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := Make(snap, smp, Options{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkChoose is what the plan screen pays per pin change.
+func BenchmarkChoose(b *testing.B) {
+	in, _ := ingest.New(ingest.Config{})
+	g := demo.New(1, 20_000)
+	for i := int64(1); i <= 20_000; i++ {
+		in.Line(g.Append(nil), i, "demo")
+	}
+	in.Flush()
+	snap := in.Snapshot(model.SnapshotOptions{})
+	for b.Loop() {
+		Choose(snap, Options{Pins: map[string]Pin{"host": PinDrop}})
 	}
 }

@@ -1,8 +1,8 @@
 package plan
 
 import (
-	"container/heap"
 	"math"
+	"slices"
 )
 
 // HuffmanLength is the expected length, in bits per symbol, of a Huffman
@@ -15,24 +15,36 @@ import (
 // H ≤ L < H+1 holds for every distribution. Counts are integers, so the sum
 // is exact until the final division.
 func HuffmanLength(counts []int64) float64 {
-	h := make(weights, 0, len(counts))
+	leaves := make([]int64, 0, len(counts))
 	var total int64
 	for _, c := range counts {
 		if c > 0 {
-			h = append(h, c)
+			leaves = append(leaves, c)
 			total += c
 		}
 	}
-	if len(h) <= 1 {
+	if len(leaves) <= 1 {
 		return 0
 	}
-	heap.Init(&h)
+	// Two queues (van Leeuwen, 1976, from memory): the sorted leaves, and
+	// the merged nodes, which are made in nondecreasing order, so the two
+	// lightest nodes are always at the queues' heads.
+	slices.Sort(leaves)
+	merged := make([]int64, 0, len(leaves)-1)
+	li, mi := 0, 0
+	next := func() int64 {
+		if mi >= len(merged) || (li < len(leaves) && leaves[li] <= merged[mi]) {
+			li++
+			return leaves[li-1]
+		}
+		mi++
+		return merged[mi-1]
+	}
 	var internal int64
-	for h.Len() > 1 {
-		a := heap.Pop(&h).(int64)
-		b := heap.Pop(&h).(int64)
-		internal += a + b
-		heap.Push(&h, a+b)
+	for k := 1; k < len(leaves); k++ {
+		w := next() + next()
+		internal += w
+		merged = append(merged, w)
 	}
 	return float64(internal) / float64(total)
 }
@@ -55,18 +67,4 @@ func Entropy(counts []int64) float64 {
 		}
 	}
 	return max(h, 0)
-}
-
-// weights is a min-heap of node weights.
-type weights []int64
-
-func (w weights) Len() int           { return len(w) }
-func (w weights) Less(i, j int) bool { return w[i] < w[j] }
-func (w weights) Swap(i, j int)      { w[i], w[j] = w[j], w[i] }
-func (w *weights) Push(x any)        { *w = append(*w, x.(int64)) }
-func (w *weights) Pop() any {
-	old := *w
-	x := old[len(old)-1]
-	*w = old[:len(old)-1]
-	return x
 }

@@ -70,6 +70,7 @@ type measurer struct {
 	recs     parse.Record
 	backRec  parse.Record
 	firstVal map[string]string
+	rec      map[string]string // reused by count
 }
 
 // Measure applies p to the sample's records, in their input format: it
@@ -239,7 +240,10 @@ func get(rec map[string]string, k string) value {
 
 // count takes one record's values into the value counts and the tables.
 func (m *measurer) count(line []byte) {
-	rec := map[string]string{}
+	if m.rec == nil {
+		m.rec = map[string]string{}
+	}
+	rec := m.rec
 	if !m.read(line, rec) {
 		return
 	}

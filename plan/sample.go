@@ -52,6 +52,15 @@ func (s *Sample) popOldest() {
 	s.n--
 }
 
+// Clone returns a copy that shares nothing with s, for handing to another
+// goroutine (a Sample is not safe for concurrent use).
+func (s *Sample) Clone() *Sample {
+	c := &Sample{max: s.max, maxBytes: s.maxBytes, lines: make([][]byte, 0, s.n)}
+	s.each(func(l []byte) { c.lines = append(c.lines, append([]byte(nil), l...)) })
+	c.n, c.bytes = len(c.lines), s.bytes
+	return c
+}
+
 // Len is the number of lines kept.
 func (s *Sample) Len() int { return s.n }
 

@@ -16,8 +16,8 @@ import (
 // plan chosen from the model alone when r was built. Every string from the
 // log is HTML-escaped by html/template.
 func WriteHTML(w io.Writer, r *Report, p *plan.Plan) error {
-	if p == nil {
-		p = r.choice
+	if p == nil && r.snap != nil {
+		p = plan.Choose(r.snap, plan.Options{})
 	}
 	return htmlPage.Execute(w, htmlData(r, p))
 }

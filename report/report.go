@@ -8,7 +8,6 @@ import (
 	"sort"
 
 	"bitsift/model"
-	"bitsift/plan"
 )
 
 // Schema is the version tag of the JSON report. Fields may be added within a
@@ -28,9 +27,10 @@ type Report struct {
 	Pairs            []Pair            `json:"pairs"`
 	LeftOutFields    int               `json:"left_out_fields,omitempty"`
 
-	// choice is the drop plan chosen from the snapshot alone, for the HTML
-	// page (bitsift plan measures one).
-	choice *plan.Plan
+	// snap is the snapshot the report was built from: the HTML page
+	// chooses a drop plan from it when none is given (only then, as a
+	// plan costs more than the report).
+	snap *model.Snapshot
 }
 
 // Window describes the window the figures cover.
@@ -101,7 +101,7 @@ func Build(s *model.Snapshot) *Report {
 	default:
 		r.Window.Size = s.Records
 	}
-	r.choice = plan.Choose(s, plan.Options{})
+	r.snap = s
 	order := sortedFields(s)
 	for _, i := range order {
 		f := &s.Fields[i]
