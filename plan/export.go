@@ -121,9 +121,10 @@ func (p *Plan) Export() *Export {
 		e.Tables, e.Saved = size(m.Tables), size(m.Saved())
 	}
 	if d, ok := p.SavedPerDay(); ok {
-		e.SavedPerDay = size(d)
-		r := round(p.RecordsPerSecond)
-		e.RecordsPerSec = &r
+		r, c := math.Round(d.Raw), math.Round(d.Compressed)
+		e.SavedPerDay = ExportSize{&r, &c}
+		rate := round(p.RecordsPerSecond)
+		e.RecordsPerSec = &rate
 	}
 	sort.Strings(e.Drop)
 	return e
