@@ -14,7 +14,7 @@ import (
 )
 
 // Formats lists the values of -o that Write accepts.
-var Formats = []string{"text", "json", "csv", "markdown"}
+var Formats = []string{"text", "json", "csv", "markdown", "html"}
 
 // Write renders r in the named format.
 func Write(w io.Writer, r *Report, format string) error {
@@ -27,6 +27,8 @@ func Write(w io.Writer, r *Report, format string) error {
 		return WriteCSV(w, r)
 	case "markdown", "md":
 		return WriteMarkdown(w, r)
+	case "html":
+		return WriteHTML(w, r, nil)
 	}
 	return fmt.Errorf("report: unknown output format %q (use one of %s)", format, strings.Join(Formats, ", "))
 }

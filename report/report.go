@@ -49,6 +49,11 @@ type Report struct {
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
 	Profile *model.Profile `json:"profile,omitempty"`
+
+	// snap is the snapshot the report was built from: the HTML page
+	// chooses a drop plan from it when none is given (only then, as a
+	// plan costs more than the report).
+	snap *model.Snapshot
 }
 
 // Event is one thing that happened to a source.
@@ -153,6 +158,7 @@ func Build(s *model.Snapshot) *Report {
 	default:
 		r.Window.Size = s.Records
 	}
+	r.snap = s
 	order := sortedFields(s)
 	for _, i := range order {
 		f := &s.Fields[i]

@@ -1,0 +1,146 @@
+package plan
+
+import (
+	"encoding/json"
+	"io"
+	"math"
+	"sort"
+)
+
+// Schema is the version tag of the JSON plan. Keys may be added within a
+// version; none is renamed or removed.
+const Schema = "bitsift.plan/1"
+
+// Export is the plan as the JSON schema spells it.
+type Export struct {
+	Schema          string        `json:"schema"`
+	Records         int           `json:"records"`
+	MaxLoss         float64       `json:"max_loss_bits"`
+	Drop            []string      `json:"drop"`
+	Derive          []ExportDeriv `json:"derive"`
+	BitsLost        float64       `json:"bits_lost_per_record"`
+	Mismatches      int           `json:"verified_mismatches"`
+	BytesPerRecord  ExportBefore  `json:"bytes_per_record"`
+	SavedPerDay     ExportSize    `json:"bytes_saved_per_day"`
+	EntropyBound    float64       `json:"entropy_bound_bits_per_record"`
+	Fields          []ExportField `json:"fields"`
+	Lossless        bool          `json:"lossless"`
+	MeasuredRecords int           `json:"measured_records"`
+	SkippedLines    int           `json:"skipped_sample_lines"`
+	Serialised      string        `json:"serialised_as"`
+	Format          string        `json:"format"`
+	Tables          ExportSize    `json:"table_bytes_per_record"`
+	Saved           ExportSize    `json:"bytes_saved_per_record"`
+	RecordsPerSec   *float64      `json:"records_per_second"`
+	BoundAll        float64       `json:"entropy_bound_all_fields_bits_per_record"`
+	Constants       []ExportConst `json:"constants"`
+	Notes           []string      `json:"notes"`
+	Caution         string        `json:"caution"`
+}
+
+// ExportDeriv is one derived field: the fields it is rebuilt from and the
+// rows of its mapping table.
+type ExportDeriv struct {
+	Field        string   `json:"field"`
+	From         []string `json:"from"`
+	TableEntries int      `json:"table_entries"`
+	Exact        bool     `json:"exact"`
+}
+
+// ExportConst is a dropped constant and the value kept once.
+type ExportConst struct {
+	Field string `json:"field"`
+	Value string `json:"value"`
+}
+
+// ExportBefore holds the sizes before and after the plan.
+type ExportBefore struct {
+	Before ExportSize `json:"before"`
+	After  ExportSize `json:"after"`
+}
+
+// ExportSize is a raw and a compressed size in bytes; nil is unknown.
+type ExportSize struct {
+	Raw        *float64 `json:"raw"`
+	Compressed *float64 `json:"compressed"`
+}
+
+// ExportField is one field of the plan.
+type ExportField struct {
+	Name           string   `json:"name"`
+	Entropy        float64  `json:"entropy_bits"`
+	Huffman        float64  `json:"huffman_bits"`
+	Action         Action   `json:"action"`
+	Kind           string   `json:"kind"`
+	Reason         string   `json:"reason"`
+	From           []string `json:"from,omitempty"`
+	Pin            string   `json:"pin,omitempty"`
+	BitsLost       float64  `json:"bits_lost"`
+	BytesPerRecord float64  `json:"bytes_per_record"`
+	SampleEntropy  float64  `json:"sample_entropy_bits"`
+	Mismatches     int      `json:"mismatches"`
+	TableEntries   int      `json:"table_entries"`
+}
+
+func size(s Size) ExportSize {
+	r, c := round(s.Raw), round(s.Compressed)
+	return ExportSize{&r, &c}
+}
+
+// Export returns the plan in the shape of the JSON schema.
+func (p *Plan) Export() *Export {
+	e := &Export{
+		Schema: Schema, Records: p.Records, MaxLoss: p.MaxLoss, Drop: []string{}, Derive: []ExportDeriv{},
+		BitsLost: round(p.BitsLost), EntropyBound: round(p.EntropyAfter), BoundAll: round(p.EntropyBefore),
+		Lossless: p.Lossless, Format: p.Format, Constants: []ExportConst{}, Notes: p.Notes, Caution: Caution,
+	}
+	if e.Notes == nil {
+		e.Notes = []string{}
+	}
+	for _, f := range p.Fields {
+		switch {
+		case f.Action == Drop:
+			e.Drop = append(e.Drop, f.Name)
+			if f.Exact {
+				e.Constants = append(e.Constants, ExportConst{f.Name, f.Value})
+			}
+		case f.Action == Derive:
+			e.Derive = append(e.Derive, ExportDeriv{f.Name, f.From, f.TableEntries, f.Exact})
+		}
+		e.Fields = append(e.Fields, ExportField{
+			Name: f.Name, Entropy: round(f.Entropy), Huffman: round(f.Huffman), Action: f.Action,
+			Kind: string(f.Kind), Reason: f.Reason, From: f.From, Pin: f.Pin.String(),
+			BitsLost: round(f.BitsLost), BytesPerRecord: round(f.BytesPerRecord),
+			SampleEntropy: round(f.SampleEntropy), Mismatches: f.Mismatches, TableEntries: f.TableEntries,
+		})
+	}
+	if m := p.Measured; m != nil {
+		e.Mismatches = m.Mismatches
+		e.MeasuredRecords, e.SkippedLines, e.Serialised = m.Records, m.Skipped, m.Serialised
+		e.BytesPerRecord = ExportBefore{size(m.Before), size(m.After)}
+		e.Tables, e.Saved = size(m.Tables), size(m.Saved())
+	}
+	if d, ok := p.SavedPerDay(); ok {
+		r, c := math.Round(d.Raw), math.Round(d.Compressed)
+		e.SavedPerDay = ExportSize{&r, &c}
+		rate := round(p.RecordsPerSecond)
+		e.RecordsPerSec = &rate
+	}
+	sort.Strings(e.Drop)
+	return e
+}
+
+// WriteJSON writes the plan as indented JSON.
+func WriteJSON(w io.Writer, p *Plan) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", " ")
+	return enc.Encode(p.Export())
+}
+
+// round keeps 6 decimals: plans are read by people and diffed.
+func round(x float64) float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0
+	}
+	return math.Round(x*1e6) / 1e6
+}
