@@ -107,7 +107,14 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	src := parse.NewFileSource(paths, cfg.MaxLine)
 	src.Stdin = std.In
-	readErr := in.ReadSource(ctx, &teeSource{Source: src, sample: smp})
+	// Measuring needs the raw lines; with --redact none may be kept, so
+	// the plan is then chosen from the figures alone.
+	redacting := cfg.Redact || len(cfg.RedactFields) > 0
+	var from parse.Source = &teeSource{Source: src, sample: smp}
+	if redacting {
+		from = src
+	}
+	readErr := in.ReadSource(ctx, from)
 	src.Close()
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
@@ -121,8 +128,12 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if snap.Records == 0 {
 		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
 	}
-	p, err := plan.Make(snap, smp, plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()})
-	if err != nil {
+	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()}
+	var p *plan.Plan
+	if redacting {
+		p = plan.Choose(snap, opts)
+		p.Notes = append(p.Notes, "not measured and not verified: --redact keeps no raw lines, so the saving is the model's estimate")
+	} else if p, err = plan.Make(snap, smp, opts); err != nil {
 		return &ExitError{Code: ExitUnreadable, Err: err}
 	}
 	write := func(w io.Writer) error {

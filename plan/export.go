@@ -13,13 +13,17 @@ const Schema = "bitsift.plan/1"
 
 // Export is the plan as the JSON schema spells it.
 type Export struct {
-	Schema          string        `json:"schema"`
-	Records         int           `json:"records"`
-	MaxLoss         float64       `json:"max_loss_bits"`
-	Drop            []string      `json:"drop"`
-	Derive          []ExportDeriv `json:"derive"`
-	BitsLost        float64       `json:"bits_lost_per_record"`
-	Mismatches      int           `json:"verified_mismatches"`
+	Schema     string        `json:"schema"`
+	Records    int           `json:"records"`
+	MaxLoss    float64       `json:"max_loss_bits"`
+	Drop       []string      `json:"drop"`
+	Derive     []ExportDeriv `json:"derive"`
+	BitsLost   float64       `json:"bits_lost_per_record"`
+	Mismatches int           `json:"verified_mismatches"`
+	// Verified: the plan was applied to a sample and rebuilt; false when
+	// it was chosen from the figures alone (then verified_mismatches says
+	// nothing).
+	Verified        bool          `json:"verified"`
 	BytesPerRecord  ExportBefore  `json:"bytes_per_record"`
 	SavedPerDay     ExportSize    `json:"bytes_saved_per_day"`
 	EntropyBound    float64       `json:"entropy_bound_bits_per_record"`
@@ -115,7 +119,7 @@ func (p *Plan) Export() *Export {
 		})
 	}
 	if m := p.Measured; m != nil {
-		e.Mismatches = m.Mismatches
+		e.Mismatches, e.Verified = m.Mismatches, true
 		e.MeasuredRecords, e.SkippedLines, e.Serialised = m.Records, m.Skipped, m.Serialised
 		e.BytesPerRecord = ExportBefore{size(m.Before), size(m.After)}
 		e.Tables, e.Saved = size(m.Tables), size(m.Saved())

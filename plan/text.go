@@ -25,6 +25,9 @@ func WriteText(w io.Writer, p *Plan) error {
 	if !p.Lossless {
 		kind = fmt.Sprintf("Lossy plan, at most %.3g bits lost per record", p.BitsLost)
 	}
+	if m == nil {
+		kind += ", not verified on records"
+	}
 	var nd, nv int
 	for _, f := range p.Fields {
 		switch f.Action {
