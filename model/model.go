@@ -141,9 +141,13 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 		}
 	}
 	m.st.push(m.cur[:width], rowMeta{line: line, time: t})
+	cur := m.cur
 	for i := range m.pairs {
 		p := &m.pairs[i]
-		p.m.inc(uint64(m.cur[p.a])<<32 | uint64(m.cur[p.b]))
+		a, b := uint64(cur[p.a]), uint64(cur[p.b])
+		if !p.m.incDense(a, b) {
+			p.m.inc(a<<32 | b)
+		}
 	}
 	m.seen++
 	if t > m.maxTime {
