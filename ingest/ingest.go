@@ -203,6 +203,9 @@ func (in *Ingester) Take(l parse.Line) {
 // ReadSource reads src to its end, or until ctx is done. It goes on past an
 // input that fails (a fault is recorded), and returns the first fault.
 func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
+	if parallelOK(src) {
+		return in.readParallel(ctx, src)
+	}
 	var first error
 	for {
 		l, err := src.Next(ctx)

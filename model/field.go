@@ -182,9 +182,14 @@ func (f *field) hashValues() {
 	f.byHash = newHashTable(len(f.values))
 	f.lens = make([]int32, len(f.text))
 	f.hashes = make([]uint64, len(f.text))
-	for v, id := range f.values {
+	// By id, not over the map, so that the samples kept do not depend on
+	// the map's random order.
+	for id, v := range f.text {
+		if id == absent || f.counts[id] == 0 {
+			continue
+		}
 		h := maphash.String(hashSeed, v)
-		f.byHash.insert(h, id)
+		f.byHash.insert(h, uint32(id))
 		f.hashes[id] = h
 		f.lens[id] = int32(len(v))
 		if len(f.samples) < 3 {
