@@ -270,13 +270,19 @@ func (in *Ingester) recTime() int64 {
 	if !ok {
 		return in.cfg.Clock().UnixNano()
 	}
+	in.markTime()
+	return t
+}
+
+// markTime marks the stream's timestamp field in the model, once, unless
+// it is to be analysed like any other.
+func (in *Ingester) markTime() {
 	if !in.timeMarked {
 		in.timeMarked = true
 		if !in.cfg.AnalyseTime {
 			in.model.SetTimestamp(in.times.Key())
 		}
 	}
-	return t
 }
 
 // add takes the record in in.rec, read from line num, into the model.
@@ -366,6 +372,9 @@ func (in *Ingester) SetEvents(events []parse.SourceEvent) {
 // input that fails (a fault is recorded), and returns the first fault. The
 // source's events are taken into the input accounting at the end.
 func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
+	if parallelOK(src) {
+		return in.readParallel(ctx, src)
+	}
 	var first error
 	for {
 		l, err := src.Next(ctx)

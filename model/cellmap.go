@@ -14,7 +14,9 @@ package model
 // Invariant: len == the number of cells with a count > 0; s == Σ clogc(count)
 // over all cells. In hash mode a slot is empty iff its count is 0.
 type cellMap struct {
-	// dense mode: dense[a*dw+b] for a < dh, b < dw; nil in hash mode.
+	// dense mode: dense[a*dw+b] for a < dh, b < dw; nil in hash mode,
+	// where dw == dh == 0 so that the test a < dh && b < dw alone tells
+	// a dense hit (see incDense).
 	dense  []int32
 	dw, dh uint64
 
@@ -63,7 +65,7 @@ func (m *cellMap) denseAt(k uint64) int {
 
 func (m *cellMap) toHash() {
 	d, dw := m.dense, m.dw
-	m.dense = nil
+	m.dense, m.dw, m.dh = nil, 0, 0
 	size := 16
 	for size*3 < m.len*4+4 {
 		size *= 2
@@ -101,6 +103,22 @@ func (m *cellMap) slot(k uint64) uint64 {
 	return (k * 0x9E3779B97F4A7C15) >> m.shift & m.mask
 }
 
+// incDense adds one record to cell (a, b) when it is inside the dense
+// matrix, and says whether it was. It is the inlined fast path of inc.
+func (m *cellMap) incDense(a, b uint64) bool {
+	if a >= m.dh || b >= m.dw {
+		return false
+	}
+	j := a*m.dw + b
+	c := m.dense[j]
+	if c == 0 {
+		m.len++
+	}
+	m.s += up(int64(c))
+	m.dense[j] = c + 1
+	return true
+}
+
 // inc adds one record to cell k.
 func (m *cellMap) inc(k uint64) {
 	if m.dense != nil {
@@ -109,7 +127,7 @@ func (m *cellMap) inc(k uint64) {
 			if c == 0 {
 				m.len++
 			}
-			m.s += clogc(int64(c)+1) - clogc(int64(c))
+			m.s += up(int64(c))
 			m.dense[j] = c + 1
 			return
 		}
@@ -127,7 +145,7 @@ func (m *cellMap) inc(k uint64) {
 			return
 		}
 		if m.keys[i] == k {
-			m.s += clogc(int64(c)+1) - clogc(int64(c))
+			m.s += up(int64(c))
 			m.counts[i] = c + 1
 			return
 		}

@@ -49,7 +49,11 @@ const (
 
 var clogcChunks [tableLimit / chunkSize]atomic.Pointer[[chunkSize]int64]
 
-func init() { clogcChunk(0) }
+// clogc0 is the first chunk, filled in init and never changed: the hot
+// loops read it with no atomic load and no call.
+var clogc0 *[chunkSize]int64
+
+func init() { clogc0 = clogcChunk(0) }
 
 func clogcChunk(i int64) *[chunkSize]int64 {
 	if p := clogcChunks[i].Load(); p != nil {
@@ -74,8 +78,12 @@ func clogcSlow(c int64) int64 {
 // clogc is c·log2(c) in fixed point (0 for c ≤ 1).
 func clogc(c int64) int64 {
 	if uint64(c) < chunkSize {
-		return clogcChunks[0].Load()[c]
+		return clogc0[c]
 	}
+	return clogcBig(c)
+}
+
+func clogcBig(c int64) int64 {
 	if c < 0 {
 		return 0
 	}
@@ -83,6 +91,15 @@ func clogc(c int64) int64 {
 		return clogcChunk(c >> chunkBits)[c&(chunkSize-1)]
 	}
 	return clogcSlow(c)
+}
+
+// up is clogc(c+1) − clogc(c), the change of S when a cell of count c gains
+// a record; small enough to be inlined into the update loops.
+func up(c int64) int64 {
+	if uint64(c) < chunkSize-1 {
+		return clogc0[c+1] - clogc0[c]
+	}
+	return clogcBig(c+1) - clogcBig(c)
 }
 
 // Entropy is the plug-in entropy in bits of a table of n records whose

@@ -35,16 +35,17 @@ type field struct {
 	s             int64
 	valueBytes    int64 // Σ len(value) over window records with an interned value
 	overflowBytes int64 // Σ len(value) over window records with an overflow value
-	stale         int   // byHash entries whose id was freed since the last sweep
 
 	// byHash, when not nil, replaces values: the field is an identifier
 	// whose values are told apart by a 64-bit keyed hash and not kept as
-	// text (text is nil), lens[id] holding their lengths. This keeps a
-	// field of unique ids at about 30 bytes per window value instead of
-	// 100 or more. Two values collide with probability about n²/2^65 (3e-6
-	// for ten million values).
-	byHash map[uint64]uint32
+	// text (text is nil), lens[id] holding their lengths and hashes[id]
+	// their hashes (so that an id leaving the window leaves the table at
+	// once). This keeps a field of unique ids at about 30 bytes per window
+	// value instead of 100 or more. Two values collide with probability
+	// about n²/2^65 (3e-6 for ten million values).
+	byHash *hashTable
 	lens   []int32
+	hashes []uint64
 	// samples holds the first few values of a hashed field, for display.
 	samples []string
 
@@ -126,13 +127,8 @@ func (f *field) remove(id uint32) {
 		f.valueBytes -= int64(f.lens[id])
 		if c == 1 {
 			f.distinct--
+			f.byHash.remove(f.hashes[id], id)
 			f.free = append(f.free, id)
-			// The hash is not kept per id; it is found by a sweep of
-			// byHash when free ids pile up (see sweep).
-			f.stale++
-			if f.stale > 1024 && f.stale > len(f.byHash)/2 {
-				f.sweep()
-			}
 		}
 		return
 	}
@@ -148,11 +144,8 @@ func (f *field) remove(id uint32) {
 // addHashed is add for a hashed field.
 func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	h := maphash.Bytes(hashSeed, v)
-	id, ok := f.byHash[h]
-	if ok && f.counts[id] == 0 {
-		ok = false // a stale entry: its id was freed (and maybe reused)
-	}
-	if !ok {
+	id := f.byHash.find(h, f.hashes)
+	if id == 0 {
 		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
 			f.present++
@@ -166,9 +159,11 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 			id = uint32(len(f.counts))
 			f.counts = append(f.counts, 0)
 			f.lens = append(f.lens, 0)
+			f.hashes = append(f.hashes, 0)
 		}
 		f.lens[id] = int32(len(v))
-		f.byHash[h] = id
+		f.hashes[id] = h
+		f.byHash.insert(h, id)
 		if len(f.samples) < 3 {
 			f.samples = append(f.samples, string(v))
 		}
@@ -184,36 +179,24 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	return id
 }
 
-// sweep drops byHash entries whose id is free or was reused by another
-// value. An entry h → id is live iff counts[id] > 0 and owner[id] == h.
-func (f *field) sweep() {
-	owner := make([]uint64, len(f.counts))
-	live := make([]bool, len(f.counts))
-	for h, id := range f.byHash {
-		if f.counts[id] > 0 {
-			owner[id], live[id] = h, true
-		}
-	}
-	fresh := make(map[uint64]uint32, f.distinct)
-	for h, id := range f.byHash {
-		if live[id] && owner[id] == h {
-			fresh[h] = id
-		}
-	}
-	f.byHash = fresh
-	f.stale = 0
-}
-
 // hashValues turns the field into a hashed one (see byHash), dropping the
 // text of its values.
 func (f *field) hashValues() {
 	if f.byHash != nil {
 		return
 	}
-	f.byHash = make(map[uint64]uint32, len(f.values))
+	f.byHash = newHashTable(len(f.values))
 	f.lens = make([]int32, len(f.text))
-	for v, id := range f.values {
-		f.byHash[maphash.String(hashSeed, v)] = id
+	f.hashes = make([]uint64, len(f.text))
+	// By id, not over the map, so that the samples kept do not depend on
+	// the map's random order.
+	for id, v := range f.text {
+		if id == absent || f.counts[id] == 0 {
+			continue
+		}
+		h := maphash.String(hashSeed, v)
+		f.byHash.insert(h, uint32(id))
+		f.hashes[id] = h
 		f.lens[id] = int32(len(v))
 		if len(f.samples) < 3 {
 			f.samples = append(f.samples, v)

@@ -146,9 +146,29 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 		}
 	}
 	m.st.push(m.cur[:width], rowMeta{line: line, time: t})
+	// The pair loop is the hottest of the model: the dense update is
+	// written out here (cellMap.incDense, inlined by hand) with the
+	// c·log c delta read straight from the first table chunk.
+	cur, tab := m.cur, clogc0
 	for i := range m.pairs {
 		p := &m.pairs[i]
-		p.m.inc(uint64(m.cur[p.a])<<32 | uint64(m.cur[p.b]))
+		cm := p.m
+		a, b := uint64(cur[p.a]), uint64(cur[p.b])
+		if a < cm.dh && b < cm.dw {
+			j := a*cm.dw + b
+			c := cm.dense[j]
+			if uint32(c) < chunkSize-1 {
+				cm.s += tab[c+1] - tab[c]
+			} else {
+				cm.s += up(int64(c))
+			}
+			if c == 0 {
+				cm.len++
+			}
+			cm.dense[j] = c + 1
+			continue
+		}
+		cm.inc(a<<32 | b)
 	}
 	m.seen++
 	if t > m.maxTime {

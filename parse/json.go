@@ -1,6 +1,10 @@
 package parse
 
-import "unicode/utf8"
+import (
+	"encoding/binary"
+	"math/bits"
+	"unicode/utf8"
+)
 
 // MaxJSONDepth is how deeply objects and arrays may nest in a JSON line
 // before the line is rejected; it bounds the parser's stack on hostile input.
@@ -58,15 +62,14 @@ func (j *JSON) Parse(line []byte, rec *Record) error {
 }
 
 func (p *jsonParser) ws() {
-	for p.i < len(p.s) {
-		switch p.s[p.i] {
-		case ' ', '\t', '\r', '\n':
-			p.i++
-		default:
-			return
-		}
+	i := p.i
+	for i < len(p.s) && jsonSpace[p.s[i]] {
+		i++
 	}
+	p.i = i
 }
+
+var jsonSpace = [256]bool{' ': true, '\t': true, '\r': true, '\n': true}
 
 // object parses {...} at p.i, emitting its members under the current prefix.
 func (p *jsonParser) object(depth int) error {
@@ -238,28 +241,55 @@ func (p *jsonParser) skipString() error {
 	return reject("unterminated JSON string")
 }
 
-// str parses the string at p.i and appends its unescaped text to dst.
-func (p *jsonParser) str(dst []byte) ([]byte, error) {
-	p.i++ // opening quote
-	for {
-		start := p.i
-		for p.i < len(p.s) && p.s[p.i] != '"' && p.s[p.i] != '\\' {
-			p.i++
+// strStop marks the bytes that end the plain run of a JSON string: the
+// closing quote and the escape character.
+var strStop = [256]bool{'"': true, '\\': true}
+
+// plainRun returns the index of the first quote or backslash in s at or
+// after i (len(s) if none), eight bytes at a time: a word has a byte b iff
+// (x^b·0x01…01 − 0x01…01) &^ (x^b·0x01…01) has a high bit set, and the
+// lowest such bit marks the first one.
+func plainRun(s []byte, i int) int {
+	const lo, hi = 0x0101010101010101, 0x8080808080808080
+	for i+8 <= len(s) {
+		x := binary.LittleEndian.Uint64(s[i:])
+		q, b := x^(lo*'"'), x^(lo*'\\')
+		if m := ((q - lo) &^ q & hi) | ((b - lo) &^ b & hi); m != 0 {
+			return i + bits.TrailingZeros64(m)>>3
 		}
-		dst = append(dst, p.s[start:p.i]...)
-		if p.i >= len(p.s) {
+		i += 8
+	}
+	for i < len(s) && !strStop[s[i]] {
+		i++
+	}
+	return i
+}
+
+// str parses the string at p.i and appends its unescaped text to dst. The
+// scan works on locals (not p.i) so that the compiler keeps them in
+// registers: this loop is most of the cost of a JSON line.
+func (p *jsonParser) str(dst []byte) ([]byte, error) {
+	s := p.s
+	i := p.i + 1 // opening quote
+	for {
+		start := i
+		i = plainRun(s, i)
+		dst = append(dst, s[start:i]...)
+		if i >= len(s) {
+			p.i = i
 			return dst, reject("unterminated JSON string")
 		}
-		if p.s[p.i] == '"' {
-			p.i++
+		if s[i] == '"' {
+			p.i = i + 1
 			return dst, nil
 		}
 		// backslash
-		if p.i+1 >= len(p.s) {
+		if i+1 >= len(s) {
+			p.i = i
 			return dst, reject("unterminated JSON string")
 		}
-		e := p.s[p.i+1]
-		p.i += 2
+		e := s[i+1]
+		i += 2
 		switch e {
 		case '"', '\\', '/':
 			dst = append(dst, e)
@@ -274,11 +304,12 @@ func (p *jsonParser) str(dst []byte) ([]byte, error) {
 		case 't':
 			dst = append(dst, '\t')
 		case 'u':
+			p.i = i
 			r, ok := p.hex4()
 			if !ok {
 				return dst, reject("invalid \\u escape in JSON string")
 			}
-			if r >= 0xD800 && r < 0xDC00 && p.i+1 < len(p.s) && p.s[p.i] == '\\' && p.s[p.i+1] == 'u' {
+			if r >= 0xD800 && r < 0xDC00 && p.i+1 < len(s) && s[p.i] == '\\' && s[p.i+1] == 'u' {
 				save := p.i
 				p.i += 2
 				if lo, ok := p.hex4(); ok && lo >= 0xDC00 && lo < 0xE000 {
@@ -287,8 +318,10 @@ func (p *jsonParser) str(dst []byte) ([]byte, error) {
 					p.i = save
 				}
 			}
+			i = p.i
 			dst = utf8.AppendRune(dst, r)
 		default:
+			p.i = i
 			return dst, reject("invalid escape in JSON string")
 		}
 	}

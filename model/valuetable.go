@@ -1,0 +1,128 @@
+package model
+
+// hashTable maps the 64-bit keyed hashes of an identifier field's values to
+// their ids. It is an open-addressing table with linear probing and
+// backward-shift deletion, so a value leaving the window takes its entry out
+// at once: no stale entries, no sweeps, and an id freed and reused by
+// another value can never be found under the old value's hash.
+//
+// A slot holds tag<<32 | id, where tag is the hash's top 32 bits and id ≥ 1;
+// 0 is an empty slot. The full hash of id is hashes[id], so a probe reads
+// the slot array only, and the hashes only on a tag match. It is written by
+// hand because a Go map of a million entries costs several cache misses per
+// lookup and more memory (about 40 bytes per entry against 8–16 here).
+//
+// Invariant: used == the number of non-empty slots; every live id (count >
+// 0) is in exactly one slot, found from its home slot without crossing an
+// empty one.
+type hashTable struct {
+	slots []uint64
+	mask  uint64
+	shift uint
+	used  int
+}
+
+func newHashTable(n int) *hashTable {
+	t := &hashTable{}
+	size := 16
+	for size*3 < n*4+4 {
+		size *= 2
+	}
+	t.alloc(size)
+	return t
+}
+
+func (t *hashTable) alloc(size int) {
+	t.slots = make([]uint64, size)
+	t.mask = uint64(size - 1)
+	t.shift = 64
+	for s := size; s > 1; s >>= 1 {
+		t.shift--
+	}
+}
+
+// len is the number of values in the table.
+func (t *hashTable) len() int { return t.used }
+
+// home is the first slot to probe for hash h: its top bits, which maphash
+// spreads evenly.
+func (t *hashTable) home(h uint64) uint64 { return h >> t.shift & t.mask }
+
+// find returns the id of hash h, or 0.
+func (t *hashTable) find(h uint64, hashes []uint64) uint32 {
+	tag := h >> 32
+	i := t.home(h)
+	for {
+		s := t.slots[i]
+		if s == 0 {
+			return 0
+		}
+		if s>>32 == tag && hashes[uint32(s)] == h {
+			return uint32(s)
+		}
+		i = (i + 1) & t.mask
+	}
+}
+
+// insert adds hash h with id, which must not be in the table.
+func (t *hashTable) insert(h uint64, id uint32) {
+	if (t.used+1)*4 > len(t.slots)*3 {
+		t.grow()
+	}
+	i := t.home(h)
+	for t.slots[i] != 0 {
+		i = (i + 1) & t.mask
+	}
+	t.slots[i] = h>>32<<32 | uint64(id)
+	t.used++
+}
+
+// remove takes id, whose hash is h, out of the table.
+func (t *hashTable) remove(h uint64, id uint32) {
+	want := h>>32<<32 | uint64(id)
+	i := t.home(h)
+	for t.slots[i] != want {
+		if t.slots[i] == 0 {
+			panic("model: hashTable.remove of a value not in the table")
+		}
+		i = (i + 1) & t.mask
+	}
+	t.slots[i] = 0
+	t.used--
+	// Backward shift: move later entries of the probe run into the hole
+	// when their home slot is not cyclically in (i, j].
+	j := i
+	for {
+		j = (j + 1) & t.mask
+		s := t.slots[j]
+		if s == 0 {
+			return
+		}
+		// The home of an entry is found from its tag: the tag holds the
+		// hash's top 32 bits, and home uses only top bits while the table
+		// has at most 2^32 slots.
+		home := t.home(s >> 32 << 32)
+		if (j > i && (home <= i || home > j)) || (j < i && home <= i && home > j) {
+			t.slots[i] = s
+			t.slots[j] = 0
+			i = j
+		}
+	}
+}
+
+func (t *hashTable) grow() {
+	old := t.slots
+	t.alloc(len(old) * 2)
+	for _, s := range old {
+		if s != 0 {
+			i := t.home(s >> 32 << 32)
+			for t.slots[i] != 0 {
+				i = (i + 1) & t.mask
+			}
+			t.slots[i] = s
+		}
+	}
+}
+
+// bytes is the memory the table holds.
+func (t *hashTable) bytes() int { return len(t.slots) * 8 }
