@@ -372,31 +372,55 @@ func (in *Ingester) SetEvents(events []parse.SourceEvent) {
 // input that fails (a fault is recorded), and returns the first fault. The
 // source's events are taken into the input accounting at the end.
 func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
-	if parallelOK(src) {
-		return in.readParallel(ctx, src)
+	parallel := parallelOK(src)
+	first, err := in.readLines(ctx, src, func() bool { return parallel && in.settled() })
+	if err == nil {
+		// The rest goes through parallel workers (pipeline.go).
+		err = in.pipeline(ctx, src)
+		switch {
+		case errors.Is(err, io.EOF):
+			err = errDone
+		case ctx.Err() == nil:
+			if first == nil {
+				first = err
+			}
+			err = errDone
+		}
 	}
-	var first error
-	for {
+	in.Flush()
+	in.SetEvents(src.Status().Events)
+	if err != errDone {
+		return err // ctx is done
+	}
+	return first
+}
+
+// readLines takes lines from src one by one until handOff says the rest
+// may go to the pipeline (err == nil), the source ends (err == errDone) or
+// ctx is done (err == ctx.Err()). first is the first fault of an input;
+// reading goes on past it.
+func (in *Ingester) readLines(ctx context.Context, src parse.Source, handOff func() bool) (first, err error) {
+	for !handOff() {
 		l, err := src.Next(ctx)
 		switch {
 		case err == nil:
 			in.Take(l)
 			continue
 		case errors.Is(err, io.EOF):
-			in.Flush()
-			in.SetEvents(src.Status().Events)
-			return first
+			return first, errDone
 		case ctx.Err() != nil:
-			in.Flush()
-			in.SetEvents(src.Status().Events)
-			return ctx.Err()
+			return first, ctx.Err()
 		}
 		in.Fault("", err)
 		if first == nil {
 			first = err
 		}
 	}
+	return first, nil
 }
+
+// errDone is readLines' word for "the source has ended".
+var errDone = errors.New("source ended")
 
 // ReadFiles reads each path in turn ("-" is standard input), plain, gzip
 // or zstd. It goes on past a file that fails, and returns the first fault.

@@ -71,38 +71,6 @@ func (in *Ingester) settled() bool {
 // added to the model, so Seen counts them).
 const timeFinderTries = 101
 
-// readParallel is ReadSource for files read once: lines one by one until
-// the pipeline can start, then the pipeline to the end.
-func (in *Ingester) readParallel(ctx context.Context, src parse.Source) error {
-	var first error
-	for !in.settled() {
-		l, err := src.Next(ctx)
-		switch {
-		case err == nil:
-			in.Take(l)
-			continue
-		case errors.Is(err, io.EOF):
-			in.Flush()
-			in.SetEvents(src.Status().Events)
-			return first
-		case ctx.Err() != nil:
-			in.Flush()
-			in.SetEvents(src.Status().Events)
-			return ctx.Err()
-		}
-		in.Fault("", err)
-		if first == nil {
-			first = err
-		}
-	}
-	err := in.pipeline(ctx, src)
-	in.Flush()
-	in.SetEvents(src.Status().Events)
-	if first == nil && !errors.Is(err, io.EOF) {
-		first = err
-	}
-	return first
-}
 
 // pipeline reads src to its end through parallel workers and returns the
 // first fault, io.EOF at a clean end, or ctx.Err().
