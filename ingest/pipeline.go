@@ -71,7 +71,6 @@ func (in *Ingester) settled() bool {
 // added to the model, so Seen counts them).
 const timeFinderTries = 101
 
-
 // pipeline reads src to its end through parallel workers and returns the
 // first fault, io.EOF at a clean end, or ctx.Err().
 func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
