@@ -30,7 +30,7 @@ import "math"
 // (0.90) chance agreement has odds 2^-7 per value of G, and it passes.
 //
 // Best predictor rule: BestGiven is, among the tracked, non-identifier,
-// non-constant G, one that passes the derived rule if any does; otherwise
+// non-constant G other than F's own companions, one that passes the derived rule if any does; otherwise
 // the G with the highest RFI, provided it is at least PredictorMinRFI. Ties
 // go to the smaller H(F|G), then the simpler G (less entropy), then the
 // name. Ranking by RFI rather than by H(F|G) is what stops a field with
@@ -134,6 +134,11 @@ func (s *Snapshot) classify() {
 		for j := range s.Fields {
 			g := &s.Fields[j]
 			if j == i || !s.HasPair(i, j) || g.Kind == Identifier || g.Kind == Constant {
+				continue
+			}
+			if g.Synthetic != nil && g.Synthetic.Source == f.Name {
+				// A field's own companion (its buckets, its template) is
+				// made from it: that it "predicts" it says nothing.
 				continue
 			}
 			det, rfi, res := s.Determines(j, i), s.RFI(i, j), s.Cond(i, j)
