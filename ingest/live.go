@@ -8,6 +8,7 @@ import (
 
 	"bitsift/model"
 	"bitsift/parse"
+	"bitsift/plan"
 )
 
 // Frame is what a screen draws at one moment: a snapshot of the model with
@@ -24,7 +25,35 @@ type Frame struct {
 	Err error
 	// Cost is how long taking the snapshot held up ingest.
 	Cost time.Duration
+	// ETA is the time a replay has left, pauses left out; HasETA is false
+	// when the source cannot tell (a live file, a replay just begun).
+	ETA    time.Duration
+	HasETA bool
+	// Baseline is the baseline mode in use (a snapshot's Changes says
+	// which profile, once there is one).
+	Baseline model.BaselineMode
 }
+
+// Pacer controls a paced source (a replay): pause it, resume it, let n
+// records through. parse.Replayer is one. Its methods are safe from any
+// goroutine.
+type Pacer interface {
+	Pause()
+	Resume()
+	Step(n int)
+	Paused() bool
+}
+
+// BaselineChoice is a baseline a screen asks for.
+type BaselineChoice int
+
+// The baseline choices.
+const (
+	// PinWindow makes the window as it is now the baseline.
+	PinWindow BaselineChoice = iota + 1
+	// Rolling compares with the previous windows.
+	Rolling
+)
 
 // Live runs an Ingester on its own goroutine, fed by a Source read on a
 // second goroutine, and hands out Frames on request. Lines pass from the
@@ -35,15 +64,19 @@ type Live struct {
 	src parse.Source
 	h   *handoff
 
-	reqs    chan frameReq
-	windows chan model.Window
-	cancel  context.CancelFunc
+	reqs      chan frameReq
+	windows   chan model.Window
+	baselines chan BaselineChoice
+	samples   chan chan *plan.Sample
+	cancel    context.CancelFunc
 	done    chan struct{}
 
 	// Owned by the run goroutine.
-	ended   bool
-	err     error
-	samples []rateSample
+	ended bool
+	err   error
+	rates []rateSample
+	// sample keeps the newest raw lines for measuring a drop plan.
+	sample *plan.Sample
 }
 
 type frameReq struct {
@@ -64,10 +97,13 @@ func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
 		in:      in,
 		src:     src,
 		h:       newHandoff(),
-		reqs:    make(chan frameReq),
-		windows: make(chan model.Window, 1),
-		cancel:  cancel,
-		done:    make(chan struct{}),
+		reqs:      make(chan frameReq),
+		windows:   make(chan model.Window, 1),
+		baselines: make(chan BaselineChoice, 1),
+		samples:   make(chan chan *plan.Sample),
+		cancel:    cancel,
+		done:      make(chan struct{}),
+		sample:    plan.NewSample(plan.DefaultBatch),
 	}
 	in.AddSource(src.Status().Name)
 	go l.read(ctx)
@@ -114,7 +150,20 @@ func (l *Live) run(ctx context.Context) {
 			r.reply <- l.frame(r.opt)
 		case w := <-l.windows:
 			l.in.SetWindow(w)
+		case b := <-l.baselines:
+			l.setBaseline(b)
+		case reply := <-l.samples:
+			reply <- l.sample.Clone()
 		}
+	}
+}
+
+func (l *Live) setBaseline(b BaselineChoice) {
+	switch b {
+	case PinWindow:
+		l.in.PinBaseline()
+	case Rolling:
+		l.in.UseRollingBaseline()
 	}
 }
 
@@ -130,7 +179,11 @@ func (l *Live) takeBatch(b *batch) {
 			}
 			continue
 		}
-		l.in.Take(parse.Line{Text: b.text[bl.start:bl.end], Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
+		text := b.text[bl.start:bl.end]
+		if !bl.tooLong {
+			l.sample.Add(text)
+		}
+		l.in.Take(parse.Line{Text: text, Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
 	}
 }
 
@@ -142,6 +195,10 @@ func (l *Live) serve() {
 			r.reply <- l.frame(r.opt)
 		case w := <-l.windows:
 			l.in.SetWindow(w)
+		case b := <-l.baselines:
+			l.setBaseline(b)
+		case reply := <-l.samples:
+			reply <- l.sample.Clone()
 		default:
 			return
 		}
@@ -158,23 +215,31 @@ const rateSpan = 3 * time.Second
 
 func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	t0 := time.Now()
+	status := l.src.Status()
+	// The source's events (rotations, truncations, gaps) go into the
+	// input accounting, so that the snapshot lists them as a report does.
+	l.in.SetEvents(status.Events)
 	snap := l.in.Snapshot(opt)
-	f := &Frame{Snap: snap, Source: l.src.Status(), Ended: l.ended, Err: l.err, Cost: time.Since(t0)}
+	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
+		Baseline: l.in.Model().BaselineMode()}
+	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
+		f.ETA, f.HasETA = e.ETA()
+	}
 	now := time.Now()
 	cur := rateSample{now, snap.Input.Lines, snap.Seen, f.Source.BytesRead}
 	// Keep one sample older than the span, so the rates cover it whole.
-	for len(l.samples) > 1 && now.Sub(l.samples[1].t) >= rateSpan {
-		l.samples = l.samples[1:]
+	for len(l.rates) > 1 && now.Sub(l.rates[1].t) >= rateSpan {
+		l.rates = l.rates[1:]
 	}
-	if len(l.samples) > 0 {
-		old := l.samples[0]
+	if len(l.rates) > 0 {
+		old := l.rates[0]
 		if dt := now.Sub(old.t).Seconds(); dt > 0.05 {
 			f.LinesPerSec = float64(cur.lines-old.lines) / dt
 			f.RecordsPerSec = float64(cur.records-old.records) / dt
 			f.BytesPerSec = float64(cur.bytes-old.bytes) / dt
 		}
 	}
-	l.samples = append(l.samples, cur)
+	l.rates = append(l.rates, cur)
 	return f
 }
 
@@ -220,6 +285,50 @@ func (l *Live) SetWindow(w model.Window) {
 		default:
 		}
 	}
+}
+
+// SetBaseline asks for a baseline: the window as it is now, or the rolling
+// one. It does not wait; the newest request wins.
+func (l *Live) SetBaseline(b BaselineChoice) {
+	for {
+		select {
+		case l.baselines <- b:
+			return
+		default:
+		}
+		select {
+		case <-l.baselines:
+		default:
+		}
+	}
+}
+
+// Sample returns a copy of the newest raw lines (at most
+// plan.DefaultBatch), for measuring a drop plan off the owner goroutine.
+// The copy costs the owner a pass over the lines (tens of milliseconds for
+// 100,000 lines): ask for it when a measurement is due, not every frame.
+func (l *Live) Sample(ctx context.Context) (*plan.Sample, error) {
+	reply := make(chan *plan.Sample, 1)
+	select {
+	case l.samples <- reply:
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	case <-l.done:
+		return nil, ErrStopped
+	}
+	select {
+	case s := <-reply:
+		return s, nil
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	}
+}
+
+// Pacer is the source's pace control when it is a paced source (a
+// replay), nil otherwise.
+func (l *Live) Pacer() Pacer {
+	p, _ := l.src.(Pacer)
+	return p
 }
 
 // Stop ends ingest and waits for the owner goroutine. The reader goroutine
