@@ -69,7 +69,7 @@ type Live struct {
 	baselines chan BaselineChoice
 	samples   chan chan *plan.Sample
 	cancel    context.CancelFunc
-	done    chan struct{}
+	done      chan struct{}
 
 	// Owned by the run goroutine.
 	ended bool
@@ -94,9 +94,9 @@ const chunkLines = 256
 func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
 	ctx, cancel := context.WithCancel(ctx)
 	l := &Live{
-		in:      in,
-		src:     src,
-		h:       newHandoff(),
+		in:        in,
+		src:       src,
+		h:         newHandoff(),
 		reqs:      make(chan frameReq),
 		windows:   make(chan model.Window, 1),
 		baselines: make(chan BaselineChoice, 1),
