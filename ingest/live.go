@@ -32,6 +32,9 @@ type Frame struct {
 	// Baseline is the baseline mode in use (a snapshot's Changes says
 	// which profile, once there is one).
 	Baseline model.BaselineMode
+	// Deep: the snapshot was taken with SnapshotOptions.Deep (it lists
+	// surprising records and multi-field determinants).
+	Deep bool
 }
 
 // Pacer controls a paced source (a replay): pause it, resume it, let n
@@ -221,7 +224,7 @@ func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	l.in.SetEvents(status.Events)
 	snap := l.in.Snapshot(opt)
 	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
-		Baseline: l.in.Model().BaselineMode()}
+		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
 	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
 		f.ETA, f.HasETA = e.ETA()
 	}
