@@ -130,9 +130,9 @@ func (v driftView) baseline(f *ingest.Frame) []string {
 	default:
 		what = "none"
 	}
-	keys := st.Muted.Render("  b pins this window · B rolling")
 	head := st.Title.Render("BASELINE") + "  " + what
-	return []string{ansiFit(head, v.w-sanitize.Width(ansiStrip(keys))) + keys}
+	keys := st.Muted.Render("          b pins the window as it is now · B goes back to rolling")
+	return []string{ansiFit(head, v.w), ansiFit(keys, v.w)}
 }
 
 // shifts is the table of the fields whose distribution moved (flagged),

@@ -43,7 +43,7 @@ func TestFlow(t *testing.T) {
 	key("4")
 	wait("BROKEN RULES")
 	key("b")
-	wait("baseline: this window, pinned at")
+	wait("BASELINE  pinned at")
 	key("5")
 	wait("estimated: saves 55.5 of 192.8")
 	for range 5 {

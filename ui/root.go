@@ -54,8 +54,17 @@ type Model struct {
 	// deepAt is when the last deep snapshot was asked for.
 	deepAt time.Time
 	// flash is a short answer to the last key ("baseline pinned"), shown
-	// on the status line until the next key.
-	flash string
+	// on the status line until the next key or for flashFor.
+	flash   string
+	flashAt time.Time
+}
+
+// flashFor is how long an answer to a key stays on the status line.
+const flashFor = 6 * time.Second
+
+// say puts an answer to a key on the status line.
+func (m *Model) say(s string) {
+	m.flash, m.flashAt = s, m.e.now()
 }
 
 // tickMsg starts the next frame request of loop gen.
@@ -293,12 +302,12 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	case key.Matches(msg, k.PinBase):
 		m.feed.SetBaseline(ingest.PinWindow)
 		m.e.pinnedAt = m.e.now()
-		m.flash = "baseline: this window, pinned at " + m.e.pinnedAt.Format("15:04:05") + " (B: rolling)"
+		m.say("baseline: this window, pinned at " + m.e.pinnedAt.Format("15:04:05") + " (B: rolling)")
 		m.deepAt = time.Time{}
 		return m.fetchDeep(true)
 	case key.Matches(msg, k.Rolling):
 		m.feed.SetBaseline(ingest.Rolling)
-		m.flash = "baseline: rolling, the window as it was one to two window lengths ago"
+		m.say("baseline: rolling, the window as it was one to two window lengths ago")
 		m.deepAt = time.Time{}
 		return m.fetchDeep(true)
 	case key.Matches(msg, k.Window):
@@ -334,10 +343,10 @@ func (m Model) pause() (tea.Model, tea.Cmd) {
 	if p := m.feed.Pacer(); p != nil {
 		if p.Paused() {
 			p.Resume()
-			m.flash = "replay resumed"
+			m.say("replay resumed")
 		} else {
 			p.Pause()
-			m.flash = "replay paused: n lets one window through, space resumes"
+			m.say("replay paused: n lets one window through, space resumes")
 		}
 		return m, m.fetch(true)
 	}
@@ -353,12 +362,12 @@ func (m Model) pause() (tea.Model, tea.Cmd) {
 func (m Model) step() (tea.Model, tea.Cmd) {
 	p := m.feed.Pacer()
 	if p == nil {
-		m.flash = "n steps a replay; this source is not one"
+		m.say("n steps a replay; this source is not one")
 		return m, nil
 	}
 	n := stepRecords(m.e.frame)
 	p.Step(n)
-	m.flash = "replay: " + count(int64(n)) + " records on, then paused (space resumes)"
+	m.say("replay: " + count(int64(n)) + " records on, then paused (space resumes)")
 	return m, m.fetch(true)
 }
 

@@ -88,12 +88,16 @@ func (m Model) statusLines() [2]string {
 	} else if f.Source.Note != "" {
 		second = append(second, sanitize.Fit(f.Source.Note, m.w/2))
 	}
-	if m.flash != "" {
-		// After the rejected count, which stays in sight.
-		flash := st.Warn.Render(sanitize.Fit(m.flash, m.w-40))
-		second = append(second[:1], append([]string{flash}, second[1:]...)...)
-	}
 	hint := st.Muted.Render("? keys · q quit ")
+	if m.flash != "" && m.e.now().Sub(m.flashAt) < flashFor {
+		// After the counts and the progress, which stay in sight, in
+		// the room they leave.
+		used := sanitize.Width(ansiStrip(joinFit(second[:4], " · ", m.w)))
+		if room := m.w - sanitize.Width(ansiStrip(hint)) - used - 4; room >= 12 {
+			flash := st.Warn.Render(sanitize.Fit(m.flash, room))
+			second = append(second[:4], append([]string{flash}, second[4:]...)...)
+		}
+	}
 	left := joinFit(second, st.Muted.Render(" · "), m.w-sanitize.Width(ansiStrip(hint))-1)
 	return [2]string{
 		joinFit(first, st.Muted.Render(" · "), m.w),
