@@ -116,3 +116,58 @@ func TestLivePacerAndETA(t *testing.T) {
 		t.Errorf("frame ETA = %v (%v), want the source's 42s", f.ETA, f.HasETA)
 	}
 }
+
+// BenchmarkFrameDeep measures frames of a 100,000-record demo window with
+// a pinned baseline: every frame (shallow: shifts and broken rules), and
+// the deep one the Drift screen asks for every few seconds.
+func BenchmarkFrameDeep(b *testing.B) {
+	in, _ := New(Config{})
+	l := StartLive(context.Background(), in, demo.NewSource(1, 100_000, 0))
+	defer l.Stop()
+	for {
+		f, _ := l.Frame(context.Background(), model.SnapshotOptions{})
+		if f.Ended {
+			break
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	l.SetBaseline(PinWindow)
+	for _, deep := range []bool{false, true} {
+		name := "shallow"
+		if deep {
+			name = "deep"
+		}
+		b.Run(name, func(b *testing.B) {
+			var cost time.Duration
+			for b.Loop() {
+				f, err := l.Frame(context.Background(), model.SnapshotOptions{TopValues: 16, Deep: deep, Surprising: 12})
+				if err != nil {
+					b.Fatal(err)
+				}
+				cost += f.Cost
+			}
+			b.ReportMetric(float64(cost.Microseconds())/float64(b.N), "µs-stall/frame")
+		})
+	}
+}
+
+// BenchmarkSample measures handing out a copy of a full plan sample
+// (100,000 demo lines), which holds up ingest while it is made.
+func BenchmarkSample(b *testing.B) {
+	in, _ := New(Config{})
+	l := StartLive(context.Background(), in, demo.NewSource(1, 100_000, 0))
+	defer l.Stop()
+	for {
+		f, _ := l.Frame(context.Background(), model.SnapshotOptions{})
+		if f.Ended {
+			break
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	b.ResetTimer()
+	for b.Loop() {
+		if _, err := l.Sample(context.Background()); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
