@@ -25,7 +25,7 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	in.UseRollingBaseline()
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	live := ingest.StartLive(ctx, in, src)
+	live := ui.StartLive(ctx, in, src)
 	defer live.Stop()
 
 	r := lipgloss.NewRenderer(std.Out)

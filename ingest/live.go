@@ -8,7 +8,6 @@ import (
 
 	"bitsift/model"
 	"bitsift/parse"
-	"bitsift/plan"
 )
 
 // Frame is what a screen draws at one moment: a snapshot of the model with
@@ -70,7 +69,7 @@ type Live struct {
 	reqs      chan frameReq
 	windows   chan model.Window
 	baselines chan BaselineChoice
-	samples   chan chan *plan.Sample
+	visits    chan func()
 	cancel    context.CancelFunc
 	done      chan struct{}
 
@@ -78,8 +77,16 @@ type Live struct {
 	ended bool
 	err   error
 	rates []rateSample
-	// sample keeps the newest raw lines for measuring a drop plan.
-	sample *plan.Sample
+	tap   func(line []byte)
+}
+
+// LiveOptions add to what a Live does.
+type LiveOptions struct {
+	// Tap, when set, is given the text of every line read (but lines
+	// over --max-line) on the owner goroutine, before the Ingester takes
+	// it; it must not keep the slice. A screen keeps raw lines with it
+	// (the plan sample), read back with Visit.
+	Tap func(line []byte)
 }
 
 type frameReq struct {
@@ -95,6 +102,11 @@ const chunkLines = 256
 // nothing else may use in until Stop returns. Stop (or cancelling ctx) ends
 // it.
 func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
+	return StartLiveWith(ctx, in, src, LiveOptions{})
+}
+
+// StartLiveWith is StartLive with options.
+func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt LiveOptions) *Live {
 	ctx, cancel := context.WithCancel(ctx)
 	l := &Live{
 		in:        in,
@@ -103,10 +115,10 @@ func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
 		reqs:      make(chan frameReq),
 		windows:   make(chan model.Window, 1),
 		baselines: make(chan BaselineChoice, 1),
-		samples:   make(chan chan *plan.Sample),
+		visits:    make(chan func()),
 		cancel:    cancel,
 		done:      make(chan struct{}),
-		sample:    plan.NewSample(plan.DefaultBatch),
+		tap:       opt.Tap,
 	}
 	in.AddSource(src.Status().Name)
 	go l.read(ctx)
@@ -155,8 +167,8 @@ func (l *Live) run(ctx context.Context) {
 			l.in.SetWindow(w)
 		case b := <-l.baselines:
 			l.setBaseline(b)
-		case reply := <-l.samples:
-			reply <- l.sample.Clone()
+		case fn := <-l.visits:
+			fn()
 		}
 	}
 }
@@ -183,8 +195,8 @@ func (l *Live) takeBatch(b *batch) {
 			continue
 		}
 		text := b.text[bl.start:bl.end]
-		if !bl.tooLong {
-			l.sample.Add(text)
+		if l.tap != nil && !bl.tooLong {
+			l.tap(text)
 		}
 		l.in.Take(parse.Line{Text: text, Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
 	}
@@ -200,8 +212,8 @@ func (l *Live) serve() {
 			l.in.SetWindow(w)
 		case b := <-l.baselines:
 			l.setBaseline(b)
-		case reply := <-l.samples:
-			reply <- l.sample.Clone()
+		case fn := <-l.visits:
+			fn()
 		default:
 			return
 		}
@@ -306,24 +318,24 @@ func (l *Live) SetBaseline(b BaselineChoice) {
 	}
 }
 
-// Sample returns a copy of the newest raw lines (at most
-// plan.DefaultBatch), for measuring a drop plan off the owner goroutine.
-// The copy costs the owner a pass over the lines (tens of milliseconds for
-// 100,000 lines): ask for it when a measurement is due, not every frame.
-func (l *Live) Sample(ctx context.Context) (*plan.Sample, error) {
-	reply := make(chan *plan.Sample, 1)
+// Visit runs fn on the owner goroutine, between two runs of lines, and
+// waits for it: fn may read what the Tap feeds without a lock. It returns
+// ctx's error, or ErrStopped after Stop (fn has not run then).
+func (l *Live) Visit(ctx context.Context, fn func()) error {
+	ran := make(chan struct{})
+	wrapped := func() { fn(); close(ran) }
 	select {
-	case l.samples <- reply:
+	case l.visits <- wrapped:
 	case <-ctx.Done():
-		return nil, ctx.Err()
+		return ctx.Err()
 	case <-l.done:
-		return nil, ErrStopped
+		return ErrStopped
 	}
 	select {
-	case s := <-reply:
-		return s, nil
+	case <-ran:
+		return nil
 	case <-ctx.Done():
-		return nil, ctx.Err()
+		return ctx.Err()
 	}
 }
 

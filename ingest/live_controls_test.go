@@ -43,8 +43,8 @@ func frameWhen(t *testing.T, l *Live, opt model.SnapshotOptions, ok func(*Frame)
 }
 
 // TestLiveControls: the source's events reach the snapshot's input
-// accounting; a pinned baseline survives a window change; the sample holds
-// the newest raw lines.
+// accounting; a pinned baseline survives a window change; every line
+// passes the tap, read back on the owner goroutine.
 func TestLiveControls(t *testing.T) {
 	in, err := New(Config{})
 	if err != nil {
@@ -52,7 +52,9 @@ func TestLiveControls(t *testing.T) {
 	}
 	const n = 20_000
 	ev := parse.SourceEvent{Time: time.Unix(1, 0), Kind: "rotated", Detail: "a → a.1"}
-	l := StartLive(context.Background(), in, &eventSource{Source: demo.NewSource(2, n, 0), ev: ev})
+	var tapped, taken int
+	l := StartLiveWith(context.Background(), in, &eventSource{Source: demo.NewSource(2, n, 0), ev: ev},
+		LiveOptions{Tap: func([]byte) { tapped++ }})
 	defer l.Stop()
 	f := waitEnded(t, l)
 	if len(f.Snap.Input.Events) != 1 || f.Snap.Input.Events[0] != ev {
@@ -75,12 +77,11 @@ func TestLiveControls(t *testing.T) {
 	l.SetBaseline(Rolling)
 	frameWhen(t, l, model.SnapshotOptions{}, func(f *Frame) bool { return f.Baseline == model.BaselineRolling })
 
-	smp, err := l.Sample(context.Background())
-	if err != nil {
+	if err := l.Visit(context.Background(), func() { taken = tapped }); err != nil {
 		t.Fatal(err)
 	}
-	if smp.Len() != n {
-		t.Errorf("sample holds %d lines, want all %d", smp.Len(), n)
+	if taken != n {
+		t.Errorf("the tap saw %d lines, want all %d", taken, n)
 	}
 }
 
@@ -148,26 +149,5 @@ func BenchmarkFrameDeep(b *testing.B) {
 			}
 			b.ReportMetric(float64(cost.Microseconds())/float64(b.N), "µs-stall/frame")
 		})
-	}
-}
-
-// BenchmarkSample measures handing out a copy of a full plan sample
-// (100,000 demo lines), which holds up ingest while it is made.
-func BenchmarkSample(b *testing.B) {
-	in, _ := New(Config{})
-	l := StartLive(context.Background(), in, demo.NewSource(1, 100_000, 0))
-	defer l.Stop()
-	for {
-		f, _ := l.Frame(context.Background(), model.SnapshotOptions{})
-		if f.Ended {
-			break
-		}
-		time.Sleep(50 * time.Millisecond)
-	}
-	b.ResetTimer()
-	for b.Loop() {
-		if _, err := l.Sample(context.Background()); err != nil {
-			b.Fatal(err)
-		}
 	}
 }
