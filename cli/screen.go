@@ -20,9 +20,12 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
+	// The screen compares with the previous windows until the user pins
+	// one (ingest.Live.SetBaseline).
+	in.UseRollingBaseline()
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	live := ingest.StartLive(ctx, in, src)
+	live := ui.StartLive(ctx, in, src)
 	defer live.Stop()
 
 	r := lipgloss.NewRenderer(std.Out)

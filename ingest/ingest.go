@@ -447,7 +447,22 @@ func (unknownFormat) Parse([]byte, *parse.Record) error {
 // SetWindow rebuilds the model over window w from the records the current
 // window holds (see model.Model.WithWindow). The input accounting (lines,
 // rejections) is of the whole stream and does not change.
+//
+// The baseline carries over: a fixed one (pinned or from a file) stays, a
+// rolling one starts again over the new window's length.
 func (in *Ingester) SetWindow(w model.Window) {
 	in.cfg.Model.Window = w
+	mode, fixed := in.model.BaselineMode(), in.model.Baseline()
 	in.model = in.model.WithWindow(w)
+	if in.timeMarked && !in.cfg.AnalyseTime {
+		// WithWindow builds a fresh model, which does not know the
+		// timestamp field.
+		in.model.SetTimestamp(in.times.Key())
+	}
+	switch mode {
+	case model.BaselineFixed:
+		in.model.SetBaseline(fixed)
+	case model.BaselineRolling:
+		in.model.UseRollingBaseline()
+	}
 }

@@ -24,7 +24,38 @@ type Frame struct {
 	Err error
 	// Cost is how long taking the snapshot held up ingest.
 	Cost time.Duration
+	// ETA is the time a replay has left, pauses left out; HasETA is false
+	// when the source cannot tell (a live file, a replay just begun).
+	ETA    time.Duration
+	HasETA bool
+	// Baseline is the baseline mode in use (a snapshot's Changes says
+	// which profile, once there is one).
+	Baseline model.BaselineMode
+	// Deep: the snapshot was taken with SnapshotOptions.Deep (it lists
+	// surprising records and multi-field determinants).
+	Deep bool
 }
+
+// Pacer controls a paced source (a replay): pause it, resume it, let n
+// records through. parse.Replayer is one. Its methods are safe from any
+// goroutine.
+type Pacer interface {
+	Pause()
+	Resume()
+	Step(n int)
+	Paused() bool
+}
+
+// BaselineChoice is a baseline a screen asks for.
+type BaselineChoice int
+
+// The baseline choices.
+const (
+	// PinWindow makes the window as it is now the baseline.
+	PinWindow BaselineChoice = iota + 1
+	// Rolling compares with the previous windows.
+	Rolling
+)
 
 // Live runs an Ingester on its own goroutine, fed by a Source read on a
 // second goroutine, and hands out Frames on request. Lines pass from the
@@ -35,15 +66,27 @@ type Live struct {
 	src parse.Source
 	h   *handoff
 
-	reqs    chan frameReq
-	windows chan model.Window
-	cancel  context.CancelFunc
-	done    chan struct{}
+	reqs      chan frameReq
+	windows   chan model.Window
+	baselines chan BaselineChoice
+	visits    chan func()
+	cancel    context.CancelFunc
+	done      chan struct{}
 
 	// Owned by the run goroutine.
-	ended   bool
-	err     error
-	samples []rateSample
+	ended bool
+	err   error
+	rates []rateSample
+	tap   func(line []byte)
+}
+
+// LiveOptions add to what a Live does.
+type LiveOptions struct {
+	// Tap, when set, is given the text of every line read (but lines
+	// over --max-line) on the owner goroutine, before the Ingester takes
+	// it; it must not keep the slice. A screen keeps raw lines with it
+	// (the plan sample), read back with Visit.
+	Tap func(line []byte)
 }
 
 type frameReq struct {
@@ -59,15 +102,23 @@ const chunkLines = 256
 // nothing else may use in until Stop returns. Stop (or cancelling ctx) ends
 // it.
 func StartLive(ctx context.Context, in *Ingester, src parse.Source) *Live {
+	return StartLiveWith(ctx, in, src, LiveOptions{})
+}
+
+// StartLiveWith is StartLive with options.
+func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt LiveOptions) *Live {
 	ctx, cancel := context.WithCancel(ctx)
 	l := &Live{
-		in:      in,
-		src:     src,
-		h:       newHandoff(),
-		reqs:    make(chan frameReq),
-		windows: make(chan model.Window, 1),
-		cancel:  cancel,
-		done:    make(chan struct{}),
+		in:        in,
+		src:       src,
+		h:         newHandoff(),
+		reqs:      make(chan frameReq),
+		windows:   make(chan model.Window, 1),
+		baselines: make(chan BaselineChoice, 1),
+		visits:    make(chan func()),
+		cancel:    cancel,
+		done:      make(chan struct{}),
+		tap:       opt.Tap,
 	}
 	in.AddSource(src.Status().Name)
 	go l.read(ctx)
@@ -114,7 +165,20 @@ func (l *Live) run(ctx context.Context) {
 			r.reply <- l.frame(r.opt)
 		case w := <-l.windows:
 			l.in.SetWindow(w)
+		case b := <-l.baselines:
+			l.setBaseline(b)
+		case fn := <-l.visits:
+			fn()
 		}
+	}
+}
+
+func (l *Live) setBaseline(b BaselineChoice) {
+	switch b {
+	case PinWindow:
+		l.in.PinBaseline()
+	case Rolling:
+		l.in.UseRollingBaseline()
 	}
 }
 
@@ -130,7 +194,11 @@ func (l *Live) takeBatch(b *batch) {
 			}
 			continue
 		}
-		l.in.Take(parse.Line{Text: b.text[bl.start:bl.end], Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
+		text := b.text[bl.start:bl.end]
+		if l.tap != nil && !bl.tooLong {
+			l.tap(text)
+		}
+		l.in.Take(parse.Line{Text: text, Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
 	}
 }
 
@@ -142,6 +210,10 @@ func (l *Live) serve() {
 			r.reply <- l.frame(r.opt)
 		case w := <-l.windows:
 			l.in.SetWindow(w)
+		case b := <-l.baselines:
+			l.setBaseline(b)
+		case fn := <-l.visits:
+			fn()
 		default:
 			return
 		}
@@ -158,23 +230,31 @@ const rateSpan = 3 * time.Second
 
 func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	t0 := time.Now()
+	status := l.src.Status()
+	// The source's events (rotations, truncations, gaps) go into the
+	// input accounting, so that the snapshot lists them as a report does.
+	l.in.SetEvents(status.Events)
 	snap := l.in.Snapshot(opt)
-	f := &Frame{Snap: snap, Source: l.src.Status(), Ended: l.ended, Err: l.err, Cost: time.Since(t0)}
+	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
+		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
+	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
+		f.ETA, f.HasETA = e.ETA()
+	}
 	now := time.Now()
 	cur := rateSample{now, snap.Input.Lines, snap.Seen, f.Source.BytesRead}
 	// Keep one sample older than the span, so the rates cover it whole.
-	for len(l.samples) > 1 && now.Sub(l.samples[1].t) >= rateSpan {
-		l.samples = l.samples[1:]
+	for len(l.rates) > 1 && now.Sub(l.rates[1].t) >= rateSpan {
+		l.rates = l.rates[1:]
 	}
-	if len(l.samples) > 0 {
-		old := l.samples[0]
+	if len(l.rates) > 0 {
+		old := l.rates[0]
 		if dt := now.Sub(old.t).Seconds(); dt > 0.05 {
 			f.LinesPerSec = float64(cur.lines-old.lines) / dt
 			f.RecordsPerSec = float64(cur.records-old.records) / dt
 			f.BytesPerSec = float64(cur.bytes-old.bytes) / dt
 		}
 	}
-	l.samples = append(l.samples, cur)
+	l.rates = append(l.rates, cur)
 	return f
 }
 
@@ -220,6 +300,50 @@ func (l *Live) SetWindow(w model.Window) {
 		default:
 		}
 	}
+}
+
+// SetBaseline asks for a baseline: the window as it is now, or the rolling
+// one. It does not wait; the newest request wins.
+func (l *Live) SetBaseline(b BaselineChoice) {
+	for {
+		select {
+		case l.baselines <- b:
+			return
+		default:
+		}
+		select {
+		case <-l.baselines:
+		default:
+		}
+	}
+}
+
+// Visit runs fn on the owner goroutine, between two runs of lines, and
+// waits for it: fn may read what the Tap feeds without a lock. It returns
+// ctx's error, or ErrStopped after Stop (fn has not run then).
+func (l *Live) Visit(ctx context.Context, fn func()) error {
+	ran := make(chan struct{})
+	wrapped := func() { fn(); close(ran) }
+	select {
+	case l.visits <- wrapped:
+	case <-ctx.Done():
+		return ctx.Err()
+	case <-l.done:
+		return ErrStopped
+	}
+	select {
+	case <-ran:
+		return nil
+	case <-ctx.Done():
+		return ctx.Err()
+	}
+}
+
+// Pacer is the source's pace control when it is a paced source (a
+// replay), nil otherwise.
+func (l *Live) Pacer() Pacer {
+	p, _ := l.src.(Pacer)
+	return p
 }
 
 // Stop ends ingest and waits for the owner goroutine. The reader goroutine

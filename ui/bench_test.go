@@ -14,12 +14,12 @@ import (
 
 // liveModel is the screen over the demo stream paced at rate lines/s,
 // with a first frame on show.
-func liveModel(b *testing.B, rate float64) (Model, *ingest.Live) {
+func liveModel(b *testing.B, rate float64) (Model, *LiveFeed) {
 	in, err := ingest.New(ingest.Config{})
 	if err != nil {
 		b.Fatal(err)
 	}
-	live := ingest.StartLive(context.Background(), in, demo.NewSource(1, 0, rate))
+	live := StartLive(context.Background(), in, demo.NewSource(1, 0, rate))
 	b.Cleanup(live.Stop)
 	m := New(live, Options{Renderer: lipgloss.NewRenderer(discard{})})
 	m = m.resize(120, 40)

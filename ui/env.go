@@ -1,6 +1,8 @@
 package ui
 
 import (
+	"time"
+
 	"github.com/charmbracelet/bubbles/key"
 	tea "github.com/charmbracelet/bubbletea"
 
@@ -12,7 +14,13 @@ type env struct {
 	st    Styles
 	keys  KeyMap
 	frame *ingest.Frame // nil until the first frame
-	hist  *history
+	// deep is the last frame with a deep snapshot (surprising records),
+	// nil until one came.
+	deep *ingest.Frame
+	hist *history
+	now  func() time.Time
+	// pinnedAt is when the user last pinned a baseline (zero: never).
+	pinnedAt time.Time
 }
 
 // openMsg asks the root to show one field up close, given another field

@@ -68,9 +68,9 @@ func (v fieldsView) capturing() bool { return v.filtering }
 func (v fieldsView) setSize(w, h int) fieldsView {
 	v.w, v.h = w, h
 	v.filter.Width = max(10, w-20)
-	// Fixed: cursor mark 2, kind 5, entropy figure 6, distinct 9, left 5,
-	// bytes 6, gaps 7.
-	free := w - 40
+	// Fixed: cursor and change marks 3, kind 5, entropy figure 6,
+	// distinct 9, left 5, bytes 6, gaps 7.
+	free := w - 41
 	l := fieldsLayout{kind: 5}
 	if free >= 70 {
 		l.kind, l.longKinds = 11, true
@@ -180,6 +180,26 @@ func (v fieldsView) clamp() fieldsView {
 	return v
 }
 
+// changeMark is the mark of what changed in a field: ✗ it is the target
+// of a broken rule, Δ its distribution shifted (flagged), else a space.
+func (v fieldsView) changeMark(name string) string {
+	f := v.env.frame
+	if f == nil || f.Snap.Changes == nil {
+		return " "
+	}
+	for _, b := range f.Snap.Changes.Broken {
+		if b.Target == name {
+			return v.env.st.Bad.Render("✗")
+		}
+	}
+	for _, s := range f.Snap.Changes.Shifts {
+		if s.Field == name && s.Flagged {
+			return v.env.st.Warn.Render("Δ")
+		}
+	}
+	return " "
+}
+
 // selected is the name of the field under the cursor, "" if none.
 func (v fieldsView) selected() string { return v.sel }
 
@@ -277,7 +297,7 @@ func (v fieldsView) header() string {
 		return s + "▼"
 	}
 	cells := []string{
-		"  " + padRight(mark(colName, t[colName]), l.name),
+		"   " + padRight(mark(colName, t[colName]), l.name),
 		padRight(mark(colKind, t[colKind]), l.kind),
 		padRight(mark(colEntropy, t[colEntropy]), 6+l.bar),
 		padLeft(mark(colDistinct, t[colDistinct]), 9),
@@ -325,10 +345,11 @@ func (v fieldsView) row(fs *model.FieldStats, cur bool) string {
 		distinct = "≥" + distinct
 	}
 	spark := sparkline(v.env.hist.of(fs.Name), l.trend, 0.1)
-	markS := "  "
+	markS := " "
 	if cur {
-		markS = "▸ "
+		markS = "▸"
 	}
+	markS += v.changeMark(fs.Name) + " "
 	name := sanitize.Pad(fs.Name, l.name)
 	if fs.Synthetic != nil {
 		// Made by bitsift from another field, not in the log.
@@ -366,6 +387,9 @@ func (v fieldsView) footer() string {
 			parts = append(parts, "+ made by bitsift")
 			break
 		}
+	}
+	if f := v.env.frame; f != nil && f.Snap.Changes != nil && (len(f.Snap.Changes.Broken) > 0 || len(f.Snap.Changes.Shifts) > 0) {
+		parts = append(parts, "✗ rule broken · Δ shifted (4)")
 	}
 	if q := v.filter.Value(); q != "" {
 		parts = append(parts, "filter “"+sanitize.Fit(q, 20)+"” (esc clears)")

@@ -7,12 +7,16 @@ import (
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/x/exp/teatest"
+
+	"bitsift/ingest"
+	"bitsift/plan"
 )
 
-// TestFlow drives the screen as a program: start, switch screens, open a
+// TestFlow drives the screen as a program: start, switch screens, pin a
+// baseline, pin a field in the plan and see the saving change, open a
 // field, pause, quit.
 func TestFlow(t *testing.T) {
-	m, _ := fixtureModel(t, 80, 24)
+	m, feed := fixtureModel(t, 80, 24)
 	tm := teatest.NewTestModel(t, m, teatest.WithInitialTermSize(80, 24))
 	wait := func(what string) {
 		t.Helper()
@@ -34,8 +38,19 @@ func TestFlow(t *testing.T) {
 	wait("refund_reason")
 	key("tab")
 	wait("cell: H(row|col)/H(row)")
-	key("4")
+	key("6")
 	wait("REJECTED")
+	key("4")
+	wait("BROKEN RULES")
+	key("b")
+	wait("BASELINE  pinned at")
+	key("5")
+	wait("estimated: saves 55.5 of 192.8")
+	for range 5 {
+		key("j") // to ts, which the plan keeps
+	}
+	key("x")
+	wait("estimated: saves 84.5 of 192.8")
 	key("1")
 	wait("[1 Fields]")
 	for range 7 {
@@ -51,5 +66,13 @@ func TestFlow(t *testing.T) {
 	if final.screen != screenFocus || final.focus.field != "upstream" || !final.paused {
 		t.Errorf("final state: screen %d, field %q, paused %v; want Focus on upstream, paused",
 			final.screen, final.focus.field, final.paused)
+	}
+	if p := final.planner.pins["ts"]; p != plan.PinDrop || len(final.planner.pins) != 1 {
+		t.Errorf("plan pins = %v, want ts pinned to drop", final.planner.pins)
+	}
+	feed.mu.Lock()
+	defer feed.mu.Unlock()
+	if len(feed.baselines) != 1 || feed.baselines[0] != ingest.PinWindow {
+		t.Errorf("baseline requests = %v, want one pin", feed.baselines)
 	}
 }

@@ -63,23 +63,32 @@ func press(t testing.TB, m Model, keys ...string) Model {
 
 func TestGolden(t *testing.T) {
 	screens := []struct {
-		name string
-		keys []string
+		name   string
+		keys   []string
+		sample bool // the feed has raw lines, so the plan is measured
 	}{
-		{"fields", nil},
-		{"fields-sorted-filtered", []string{"s", "S", "/", "o", "u", "enter"}},
-		{"pairs", []string{"2", "down", "down", "l"}},
-		{"focus", []string{"2", "down", "down", "down", "down", "l", "l", "l", "enter"}},
-		{"focus-best", []string{"/", "upstream", "enter", "enter"}},
-		{"input", []string{"4"}},
-		{"help", []string{"?"}},
-		{"paused", []string{"space"}},
+		{"fields", nil, false},
+		{"fields-sorted-filtered", []string{"s", "S", "/", "o", "u", "enter"}, false},
+		{"pairs", []string{"2", "down", "down", "l"}, false},
+		{"focus", []string{"2", "down", "down", "down", "down", "l", "l", "l", "enter"}, false},
+		{"focus-best", []string{"/", "upstream", "enter", "enter"}, false},
+		{"drift", []string{"4"}, false},
+		{"drift-surprising", []string{"4", "G"}, false},
+		{"plan", []string{"5"}, false},
+		{"plan-pinned", []string{"5", "down", "down", "+", "down", "x"}, false},
+		{"plan-measured", []string{"5"}, true},
+		{"input", []string{"6"}, false},
+		{"help", []string{"?"}, false},
+		{"paused", []string{"space"}, false},
 	}
 	for _, size := range [][2]int{{80, 24}, {120, 40}} {
 		for _, sc := range screens {
 			name := sc.name + "-" + strconv.Itoa(size[0]) + "x" + strconv.Itoa(size[1])
 			t.Run(name, func(t *testing.T) {
-				m, _ := fixtureModel(t, size[0], size[1])
+				m, feed := fixtureModel(t, size[0], size[1])
+				if sc.sample {
+					feed.sample = fixtureSample()
+				}
 				m = press(t, m, sc.keys...)
 				got := ansi.Strip(m.View())
 				checkSize(t, got, size[0], size[1])

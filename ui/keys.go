@@ -10,10 +10,12 @@ type KeyMap struct {
 	Top, Bottom           key.Binding
 	Next, Prev            key.Binding
 	Fields, Pairs, Focus  key.Binding
-	Intake                key.Binding
+	Drift, Plan, Intake   key.Binding
 	Open, Back            key.Binding
 	Sort, Reverse, Filter key.Binding
-	Window, Pause         key.Binding
+	Window, Pause, Step   key.Binding
+	PinBase, Rolling      key.Binding
+	Keep, Drop, Unpin     key.Binding
 	Rejected, Events      key.Binding
 	Help, Quit            key.Binding
 }
@@ -26,7 +28,7 @@ func DefaultKeys() KeyMap {
 	return KeyMap{
 		Up:       b("↑/k", "up", "up", "k"),
 		Down:     b("↓/j", "down", "down", "j"),
-		Left:     b("←/h", "left · previous field", "left", "h"),
+		Left:     b("←/h", "left · prev field", "left", "h"),
 		Right:    b("→/l", "right · next field", "right", "l"),
 		PageUp:   b("pgup", "page up", "pgup", "ctrl+b"),
 		PageDown: b("pgdn", "page down", "pgdown", "ctrl+f"),
@@ -37,14 +39,22 @@ func DefaultKeys() KeyMap {
 		Fields:   b("1", "fields", "1"),
 		Pairs:    b("2", "pairs", "2"),
 		Focus:    b("3", "one field", "3"),
-		Intake:   b("4", "input", "4"),
+		Drift:    b("4", "what changed", "4"),
+		Plan:     b("5", "drop plan", "5"),
+		Intake:   b("6", "input", "6"),
 		Open:     b("enter", "open field or cell", "enter"),
 		Back:     b("esc", "back · clear filter", "esc"),
 		Sort:     b("s", "sort by next column", "s"),
 		Reverse:  b("S", "reverse sort", "S"),
 		Filter:   b("/", "filter fields by name", "/"),
 		Window:   b("w", "change window", "w"),
-		Pause:    b("space", "pause display", " "),
+		Pause:    b("space", "pause display · replay", " "),
+		Step:     b("n", "replay: one window on", "n"),
+		PinBase:  b("b", "pin window as baseline", "b"),
+		Rolling:  b("B", "rolling baseline", "B"),
+		Keep:     b("+", "plan: keep field", "+"),
+		Drop:     b("x", "plan: drop field", "x"),
+		Unpin:    b("u", "plan: unpin field", "u"),
 		Rejected: b("r", "rejected lines", "r"),
 		Events:   b("e", "source events", "e"),
 		Help:     b("?", "keys", "?"),
@@ -61,11 +71,13 @@ func (k KeyMap) ShortHelp() []key.Binding {
 func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Left, k.Right, k.PageUp, k.PageDown, k.Top, k.Bottom},
-		{k.Next, k.Prev, k.Fields, k.Pairs, k.Focus, k.Intake, k.Open, k.Back},
-		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause},
+		{k.Next, k.Prev, k.Fields, k.Pairs, k.Focus, k.Drift, k.Plan, k.Intake, k.Open, k.Back},
 		{k.Rejected, k.Events, k.Help, k.Quit},
+		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause, k.Step},
+		{k.PinBase, k.Rolling, k.Keep, k.Drop, k.Unpin},
 	}
 }
 
-// helpGroups names the FullHelp columns, in order.
-var helpGroups = []string{"move", "screens", "view", "other"}
+// helpGroups names the FullHelp columns, in order. At 80 columns the
+// first three make one row and the last two another.
+var helpGroups = []string{"move", "screens", "other", "view", "drift · plan"}

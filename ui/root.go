@@ -10,21 +10,24 @@ import (
 
 	"bitsift/ingest"
 	"bitsift/model"
+	"bitsift/plan"
 	"bitsift/sanitize"
 )
 
-// screen is one of the four screens.
+// screen is one of the six screens.
 type screen int
 
 const (
 	screenFields screen = iota
 	screenPairs
 	screenFocus
+	screenDrift
+	screenPlan
 	screenIntake
 	numScreens
 )
 
-var screenNames = [numScreens]string{"Fields", "Pairs", "Focus", "Input"}
+var screenNames = [numScreens]string{"Fields", "Pairs", "Focus", "Drift", "Plan", "Input"}
 
 // Model is the root of the screen: it owns the frame loop and routes
 // messages to the screen on show.
@@ -38,6 +41,8 @@ type Model struct {
 	fields       fieldsView
 	pairs        pairsView
 	focus        focusView
+	drift        driftView
+	planner      plannerView
 	intake       intakeView
 
 	w, h     int
@@ -46,6 +51,20 @@ type Model struct {
 	showHelp bool
 	// pendingWindow is a window asked for and not yet in a frame.
 	pendingWindow *model.Window
+	// deepAt is when the last deep snapshot was asked for.
+	deepAt time.Time
+	// flash is a short answer to the last key ("baseline pinned"), shown
+	// on the status line until the next key or for flashFor.
+	flash   string
+	flashAt time.Time
+}
+
+// flashFor is how long an answer to a key stays on the status line.
+const flashFor = 6 * time.Second
+
+// say puts an answer to a key on the status line.
+func (m *Model) say(s string) {
+	m.flash, m.flashAt = s, m.e.now()
 }
 
 // tickMsg starts the next frame request of loop gen.
@@ -61,18 +80,28 @@ type frameMsg struct {
 	err   error
 }
 
+// measuredMsg is the end of a background plan.Make for the pins of
+// version ver.
+type measuredMsg struct {
+	ver  int
+	plan *plan.Plan
+	err  error
+}
+
 // New returns the screen over feed.
 func New(feed Feed, opt Options) Model {
 	opt = opt.withDefaults()
-	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery)}
+	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery), now: opt.Clock}
 	h := help.New()
 	h.Styles.FullKey = e.st.HelpKey
 	h.Styles.FullDesc = e.st.HelpDesc
 	h.Styles.ShortKey = e.st.HelpKey
 	h.Styles.ShortDesc = e.st.HelpDesc
+	h.FullSeparator = "  "
 	m := Model{
 		opt: opt, feed: feed, e: e, help: h,
-		fields: newFieldsView(e), pairs: newPairsView(e), focus: newFocusView(e), intake: newIntakeView(e),
+		fields: newFieldsView(e), pairs: newPairsView(e), focus: newFocusView(e),
+		drift: newDriftView(e), planner: newPlannerView(e), intake: newIntakeView(e),
 		w: 80, h: 24,
 	}
 	return m.resize(80, 24)
@@ -82,8 +111,21 @@ func New(feed Feed, opt Options) Model {
 func (m Model) Init() tea.Cmd { return m.fetch(false) }
 
 // fetch requests a frame off the UI goroutine.
-func (m Model) fetch(once bool) tea.Cmd {
-	gen, opt, feed, ctx := m.gen, m.snapshotOptions(), m.feed, m.opt.Context
+func (m Model) fetch(once bool) tea.Cmd { return m.fetchOpt(once, m.snapshotOptions()) }
+
+// fetchDeep requests a frame, deep when one is due: while the Drift screen
+// is on show, every DeepEvery (a deep snapshot scans the window's records).
+func (m Model) fetchDeep(once bool) (Model, tea.Cmd) {
+	opt := m.snapshotOptions()
+	if now := m.e.now(); m.screen == screenDrift && now.Sub(m.deepAt) >= m.opt.DeepEvery {
+		opt.Deep, opt.Surprising = true, surprisingShown
+		m.deepAt = now
+	}
+	return m, m.fetchOpt(once, opt)
+}
+
+func (m Model) fetchOpt(once bool, opt model.SnapshotOptions) tea.Cmd {
+	gen, feed, ctx := m.gen, m.feed, m.opt.Context
 	return func() tea.Msg {
 		f, err := feed.Frame(ctx, opt)
 		return frameMsg{gen: gen, once: once, frame: f, err: err}
@@ -115,9 +157,12 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		if msg.gen != m.gen || m.paused {
 			return m, nil
 		}
-		return m, m.fetch(false)
+		return m.fetchDeep(false)
 	case frameMsg:
 		return m.onFrame(msg)
+	case measuredMsg:
+		m.planner = m.planner.measured(msg.ver, msg.plan, msg.err)
+		return m, nil
 	case openMsg:
 		m.focus = m.focus.show(msg.field, msg.given)
 		m.back, m.screen = m.screen, screenFocus
@@ -157,15 +202,44 @@ func (m Model) onFrame(msg frameMsg) (tea.Model, tea.Cmd) {
 		return m, nil
 	}
 	m = m.apply(msg.frame)
+	measure := m.maybeMeasure()
 	if msg.once {
-		return m, nil
+		return m, measure
 	}
-	return m, m.tick()
+	return m, tea.Batch(m.tick(), measure)
+}
+
+// maybeMeasure starts a background measurement of the plan on show when
+// one is due (see plannerView.due).
+func (m *Model) maybeMeasure() tea.Cmd {
+	if m.screen != screenPlan || m.e.frame == nil {
+		return nil
+	}
+	var ok bool
+	m.planner, ok = m.planner.due(m.opt.MeasureEvery)
+	if !ok {
+		return nil
+	}
+	feed, ctx, snap := m.feed, m.opt.Context, m.e.frame.Snap
+	ver, opt := m.planner.ver, m.planner.options()
+	return func() tea.Msg {
+		smp, err := feed.Sample(ctx)
+		if err != nil {
+			return measuredMsg{ver: ver, err: err}
+		}
+		smp.Keep(snap.Records)
+		opt.Batch = smp.Len()
+		p, err := plan.Make(snap, smp, opt)
+		return measuredMsg{ver: ver, plan: p, err: err}
+	}
 }
 
 // apply puts a frame on show.
 func (m Model) apply(f *ingest.Frame) Model {
 	m.e.frame = f
+	if f.Deep {
+		m.e.deep = f
+	}
 	m.e.hist.add(f.Snap, time.Now())
 	if m.pendingWindow != nil && f.Snap.Window == *m.pendingWindow {
 		m.pendingWindow = nil
@@ -173,6 +247,8 @@ func (m Model) apply(f *ingest.Frame) Model {
 	m.fields = m.fields.refresh()
 	m.pairs = m.pairs.refresh()
 	m.focus = m.focus.refresh()
+	m.drift = m.drift.refresh()
+	m.planner = m.planner.refresh()
 	m.intake = m.intake.refresh()
 	return m
 }
@@ -185,6 +261,8 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	if m.screen == screenFields && m.fields.capturing() {
 		return m.toScreen(msg)
 	}
+	m.flash = ""
+	before := m.screen
 	switch {
 	case key.Matches(msg, k.Quit):
 		return m, tea.Quit
@@ -205,6 +283,10 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 			m.focus = m.focus.show(m.fields.selected(), "")
 		}
 		m = m.show(screenFocus)
+	case key.Matches(msg, k.Drift):
+		m = m.show(screenDrift)
+	case key.Matches(msg, k.Plan):
+		m = m.show(screenPlan)
 	case key.Matches(msg, k.Intake):
 		m = m.show(screenIntake)
 	case key.Matches(msg, k.Rejected):
@@ -214,11 +296,20 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m = m.show(screenIntake)
 		m.intake = m.intake.jump("events")
 	case key.Matches(msg, k.Pause):
-		m.paused = !m.paused
-		m.gen++
-		if !m.paused {
-			return m, m.fetch(false)
-		}
+		return m.pause()
+	case key.Matches(msg, k.Step):
+		return m.step()
+	case key.Matches(msg, k.PinBase):
+		m.feed.SetBaseline(ingest.PinWindow)
+		m.e.pinnedAt = m.e.now()
+		m.say("baseline: this window, pinned at " + m.e.pinnedAt.Format("15:04:05") + " (B: rolling)")
+		m.deepAt = time.Time{}
+		return m.fetchDeep(true)
+	case key.Matches(msg, k.Rolling):
+		m.feed.SetBaseline(ingest.Rolling)
+		m.say("baseline: rolling, the window as it was one to two window lengths ago")
+		m.deepAt = time.Time{}
+		return m.fetchDeep(true)
 	case key.Matches(msg, k.Window):
 		return m.nextWindow()
 	case key.Matches(msg, k.Back) && m.screen == screenFocus:
@@ -226,7 +317,70 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	default:
 		return m.toScreen(msg)
 	}
+	return m.arrive(before)
+}
+
+// arrive asks for what a screen just switched to needs: a deep frame for
+// Drift when one is due, a measurement for Plan.
+func (m Model) arrive(before screen) (tea.Model, tea.Cmd) {
+	if m.screen == before || m.paused {
+		return m, nil
+	}
+	switch m.screen {
+	case screenDrift:
+		if m.e.now().Sub(m.deepAt) >= m.opt.DeepEvery {
+			return m.fetchDeep(true)
+		}
+	case screenPlan:
+		return m, m.maybeMeasure()
+	}
 	return m, nil
+}
+
+// pause pauses a replay itself (the display goes on showing it paused),
+// or else the display (ingest goes on).
+func (m Model) pause() (tea.Model, tea.Cmd) {
+	if p := m.feed.Pacer(); p != nil {
+		if p.Paused() {
+			p.Resume()
+			m.say("replay resumed")
+		} else {
+			p.Pause()
+			m.say("replay paused: n lets one window through, space resumes")
+		}
+		return m, m.fetch(true)
+	}
+	m.paused = !m.paused
+	m.gen++
+	if !m.paused {
+		return m, m.fetch(false)
+	}
+	return m, nil
+}
+
+// step lets one window of records through a paused replay.
+func (m Model) step() (tea.Model, tea.Cmd) {
+	p := m.feed.Pacer()
+	if p == nil {
+		m.say("n steps a replay; this source is not one")
+		return m, nil
+	}
+	n := stepRecords(m.e.frame)
+	p.Step(n)
+	m.say("replay: " + count(int64(n)) + " records on, then paused (space resumes)")
+	return m, m.fetch(true)
+}
+
+// stepRecords is one window of records: the window's length for a record
+// window, else as many records as the window holds now (at least 1,000).
+func stepRecords(f *ingest.Frame) int {
+	if f == nil {
+		return 1000
+	}
+	if w := f.Snap.Window; w.Kind == model.WindowRecords {
+		return w.Records
+	}
+	return max(1000, f.Snap.Records)
 }
 
 // show switches screens, closing the help page.
@@ -252,6 +406,11 @@ func (m Model) toScreen(msg tea.Msg) (tea.Model, tea.Cmd) {
 		if m.focus.field != before {
 			cmd = m.fetch(true) // the detail of the new field
 		}
+	case screenDrift:
+		m.drift, cmd = m.drift.Update(msg)
+	case screenPlan:
+		m.planner, cmd = m.planner.Update(msg)
+		return m, tea.Batch(cmd, m.maybeMeasure())
 	case screenIntake:
 		m.intake, cmd = m.intake.Update(msg)
 	}
@@ -294,6 +453,8 @@ func (m Model) resize(w, h int) Model {
 	m.fields = m.fields.setSize(w, ch)
 	m.pairs = m.pairs.setSize(w, ch)
 	m.focus = m.focus.setSize(w, ch)
+	m.drift = m.drift.setSize(w, ch)
+	m.planner = m.planner.setSize(w, ch)
 	m.intake = m.intake.setSize(w, ch)
 	return m
 }
@@ -315,6 +476,10 @@ func (m Model) View() string {
 		body = m.pairs.View()
 	case m.screen == screenFocus:
 		body = m.focus.View()
+	case m.screen == screenDrift:
+		body = m.drift.View()
+	case m.screen == screenPlan:
+		body = m.planner.View()
 	default:
 		body = m.intake.View()
 	}
@@ -324,12 +489,25 @@ func (m Model) View() string {
 
 func (m Model) topLine() string {
 	st := m.e.st
-	parts := []string{st.Title.Render(" bitsift ")}
+	labels := make([]string, numScreens)
+	width := 9 // " bitsift "
 	for i, name := range screenNames {
-		label := string(rune('1'+i)) + " " + name
-		if screen(i) == screenFocus && m.focus.field != "" {
-			label += ": " + sanitize.Fit(m.focus.field, 16)
+		labels[i] = string(rune('1'+i)) + " " + name
+		if screen(i) == screenDrift {
+			if n := m.drift.alerts(); n > 0 {
+				labels[i] += " !" + count(int64(n))
+			}
 		}
+		width += sanitize.Width(labels[i]) + 3
+	}
+	if m.focus.field != "" {
+		// The field's name goes on its tab as far as the line has room.
+		if room := m.w - width - 2; room >= 4 {
+			labels[screenFocus] += ": " + sanitize.Fit(m.focus.field, min(16, room))
+		}
+	}
+	parts := []string{st.Title.Render(" bitsift ")}
+	for i, label := range labels {
 		if screen(i) == m.screen && !m.showHelp {
 			parts = append(parts, st.TabActive.Render("["+label+"]"))
 		} else {
@@ -343,8 +521,8 @@ func (m Model) topLine() string {
 	return ansiFit(line, m.w)
 }
 
-// helpPage is the grouped key help, in one row of groups when wide, else
-// two.
+// helpPage is the grouped key help: the groups packed into as few rows as
+// the width allows.
 func (m Model) helpPage(h int) string {
 	groups := m.e.keys.FullHelp()
 	titled := make([][]key.Binding, len(groups))
@@ -353,16 +531,44 @@ func (m Model) helpPage(h int) string {
 		titled[i] = append([]key.Binding{head}, g...)
 	}
 	var rows []string
-	if m.w >= 130 {
-		rows = []string{m.help.FullHelpView(titled)}
-	} else {
-		rows = []string{m.help.FullHelpView(titled[:2]), "", m.help.FullHelpView(titled[2:])}
+	var row [][]key.Binding
+	flush := func() {
+		if len(row) > 0 {
+			if len(rows) > 0 {
+				rows = append(rows, "")
+			}
+			rows = append(rows, m.help.FullHelpView(row))
+			row = nil
+		}
 	}
+	// Measured without the help model's own cut at the width.
+	whole := m.help
+	whole.Width = 0
+	for _, g := range titled {
+		wide := append(append([][]key.Binding(nil), row...), g)
+		if len(row) > 0 && maxWidth(whole.FullHelpView(wide)) > m.w-2 {
+			flush()
+		}
+		row = append(row, g)
+	}
+	flush()
 	lines := strings.Split(strings.Join(rows, "\n"), "\n")
-	lines = append([]string{""}, lines...)
 	for i := range lines {
 		lines[i] = " " + lines[i]
 	}
-	lines = append(lines, "", m.e.st.Muted.Render(" space pauses the display only: ingest goes on. ? or esc closes this page."))
+	note := " space pauses the display only: ingest goes on. ? or esc closes this page."
+	if m.feed.Pacer() != nil {
+		note = " space pauses the replay itself; n lets one window through. ? or esc closes this page."
+	}
+	lines = append(lines, "", m.e.st.Muted.Render(ansiFit(note, m.w)))
 	return fill(lines, h)
+}
+
+// maxWidth is the widest line of s, in cells.
+func maxWidth(s string) int {
+	w := 0
+	for _, l := range strings.Split(s, "\n") {
+		w = max(w, sanitize.Width(ansiStrip(l)))
+	}
+	return w
 }

@@ -5,6 +5,7 @@ import (
 
 	"bitsift/ingest"
 	"bitsift/model"
+	"bitsift/parse"
 	"bitsift/sanitize"
 )
 
@@ -17,7 +18,12 @@ func progress(f *ingest.Frame) string {
 	}
 	s := byteSize(src.BytesRead) + " of " + byteSize(src.BytesTotal) + " (" +
 		percent(float64(src.BytesRead)/float64(src.BytesTotal)) + ")"
-	if !f.Ended && f.BytesPerSec > 0 && src.BytesRead < src.BytesTotal {
+	switch {
+	case f.Ended || src.BytesRead >= src.BytesTotal:
+	case f.HasETA:
+		// The replay's own estimate, which leaves its pauses out.
+		s += " · ETA " + span(f.ETA)
+	case f.BytesPerSec > 0:
 		eta := time.Duration(float64(src.BytesTotal-src.BytesRead) / f.BytesPerSec * float64(time.Second))
 		s += " · ETA " + span(eta)
 	}
@@ -49,7 +55,14 @@ func (m Model) statusLines() [2]string {
 		state = "reading"
 	}
 	badge := st.Badge[state]
-	first := []string{" " + badge.Render("● "+state)}
+	label := state
+	switch f.Source.State {
+	case parse.StateWaiting:
+		label = "waiting for the file"
+	case parse.StatePaused:
+		label = "replay paused"
+	}
+	first := []string{" " + badge.Render("● "+label)}
 	if m.paused {
 		first[0] += " " + st.Badge["paused"].Render(" display paused ")
 	}
@@ -76,6 +89,15 @@ func (m Model) statusLines() [2]string {
 		second = append(second, sanitize.Fit(f.Source.Note, m.w/2))
 	}
 	hint := st.Muted.Render("? keys · q quit ")
+	if m.flash != "" && m.e.now().Sub(m.flashAt) < flashFor {
+		// After the counts and the progress, which stay in sight, in
+		// the room they leave.
+		used := sanitize.Width(ansiStrip(joinFit(second[:4], " · ", m.w)))
+		if room := m.w - sanitize.Width(ansiStrip(hint)) - used - 4; room >= 12 {
+			flash := st.Warn.Render(sanitize.Fit(m.flash, room))
+			second = append(second[:4], append([]string{flash}, second[4:]...)...)
+		}
+	}
 	left := joinFit(second, st.Muted.Render(" · "), m.w-sanitize.Width(ansiStrip(hint))-1)
 	return [2]string{
 		joinFit(first, st.Muted.Render(" · "), m.w),

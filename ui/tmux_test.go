@@ -5,6 +5,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -123,27 +124,82 @@ func TestTmuxDemo(t *testing.T) {
 	tt.waitFor("[3 Focus", "TOP VALUES", "surprisal")
 	tt.keys("?")
 	tt.waitFor("MOVE", "SCREENS", "change window")
-	tt.keys("Escape", "1", "w")
+	tt.keys("Escape", "4")
+	tt.waitFor("[4 Drift", "BASELINE", "rolling", "SURPRISING RECORDS")
+	tt.keys("b")
+	tt.waitFor("BASELINE  pinned at", "BROKEN RULES", "SHIFTED FIELDS")
+	tt.keys("5")
+	screen := tt.waitFor("[5 Plan]", "estimated: saves", "Caution: dropping fields")
+	before := estimatedSaving(t, screen)
+	// Rows: the constant, the derived fields, then the kept ones, largest
+	// first: down to the first kept one (an identifier, 20-odd B/record).
+	for range 12 {
+		if cursorRow(screen, " keep ") {
+			break
+		}
+		tt.keys("j")
+		screen = tt.capture()
+	}
+	tt.keys("x")
+	deadline := time.Now().Add(10 * time.Second)
+	for {
+		screen = tt.capture()
+		if after := estimatedSaving(t, screen); after > before+10 {
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("pinning a kept field to drop did not raise the saving from %.1f B/record:\n%s", before, screen)
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	if !strings.Contains(screen, "Caution: dropping fields") {
+		t.Errorf("the plan screen lost its caution:\n%s", screen)
+	}
+	tt.keys("1", "w")
 	tt.waitFor("window 5m") // the demo starts on 100k; w goes to the next
 	tt.keys("Space")
 	tt.waitFor("display paused")
 	tt.quit()
 }
 
-func TestTmuxReplay(t *testing.T) {
-	if testing.Short() {
-		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+// cursorRow says whether the row under the cursor (▸) holds want.
+func cursorRow(screen, want string) bool {
+	for _, l := range strings.Split(screen, "\n") {
+		if strings.HasPrefix(l, "▸") {
+			return strings.Contains(l, want)
+		}
 	}
-	bin := buildBinary(t)
+	return false
+}
+
+var savingRE = regexp.MustCompile(`estimated: saves ([0-9.]+) of`)
+
+// estimatedSaving reads the Plan screen's estimated saving, B/record.
+func estimatedSaving(t *testing.T, screen string) float64 {
+	t.Helper()
+	m := savingRE.FindStringSubmatch(screen)
+	if m == nil {
+		t.Fatalf("no estimated saving on the plan screen:\n%s", screen)
+	}
+	v, err := strconv.ParseFloat(m[1], 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return v
+}
+
+// demoFile writes n demo lines (seed 5) and one line that is not JSON.
+func demoFile(t *testing.T, n int) string {
+	t.Helper()
 	path := filepath.Join(t.TempDir(), "quayside.jsonl")
 	f, err := os.Create(path)
 	if err != nil {
 		t.Fatal(err)
 	}
 	w := bufio.NewWriter(f)
-	g := demo.New(5, 30_000)
+	g := demo.New(5, int64(n))
 	var buf []byte
-	for range 30_000 {
+	for range n {
 		buf = append(g.Append(buf[:0]), '\n')
 		w.Write(buf)
 	}
@@ -152,11 +208,70 @@ func TestTmuxReplay(t *testing.T) {
 		t.Fatal(err)
 	}
 	f.Close()
+	return path
+}
+
+func TestTmuxReplay(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+	}
+	bin := buildBinary(t)
+	path := demoFile(t, 30_000)
 	tt := startTmux(t, 120, 40, bin+" replay "+path)
 	tt.waitFor("[1 Fields]", "zone", "host", "done", "30,001 lines", "rejected 1")
 	tt.keys("Tab")
 	tt.waitFor("[2 Pairs]")
 	tt.keys("r")
-	tt.waitFor("[4 Input]", "REJECTED  1 of 30,001 lines", "this line is not JSON")
+	tt.waitFor("[6 Input]", "REJECTED  1 of 30,001 lines", "this line is not JSON")
+	tt.quit()
+}
+
+var linesRE = regexp.MustCompile(`([0-9,]+) lines(?: |$)`)
+
+// shownLines reads the line count on the status line.
+func shownLines(t *testing.T, screen string) int {
+	t.Helper()
+	m := linesRE.FindStringSubmatch(screen)
+	if m == nil {
+		t.Fatalf("no line count on the status line:\n%s", screen)
+	}
+	n, _ := strconv.Atoi(strings.ReplaceAll(m[1], ",", ""))
+	return n
+}
+
+// TestTmuxReplayPaced: a paced replay shows its progress with an ETA;
+// space pauses the replay itself and n lets one window through.
+func TestTmuxReplayPaced(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+	}
+	bin := buildBinary(t)
+	path := demoFile(t, 60_000)
+	tt := startTmux(t, 100, 30, bin+" replay --speed 1 --window 5000 "+path)
+	tt.waitFor("● replaying", "ETA")
+	tt.keys("Space")
+	screen := tt.waitFor("● replay paused")
+	time.Sleep(500 * time.Millisecond) // a frame after the pause
+	screen = tt.capture()
+	paused := shownLines(t, screen)
+	time.Sleep(time.Second)
+	if n := shownLines(t, tt.capture()); n != paused {
+		t.Fatalf("the paused replay went on from %d to %d lines", paused, n)
+	}
+	tt.keys("n")
+	deadline := time.Now().Add(10 * time.Second)
+	for {
+		screen = tt.capture()
+		n := shownLines(t, screen)
+		if n == paused+5000 && strings.Contains(screen, "● replay paused") {
+			break
+		}
+		if time.Now().After(deadline) || n > paused+5000 {
+			t.Fatalf("n let %d lines through, want one window of 5,000:\n%s", n-paused, screen)
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	tt.keys("Space")
+	tt.waitFor("● replaying")
 	tt.quit()
 }

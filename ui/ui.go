@@ -4,8 +4,8 @@
 // times a second while ingest runs on its own goroutine.
 //
 // The root Model routes messages to one small model per screen (fields.go,
-// pairs.go, focus.go, intake.go); keys.go holds the bindings and styles.go
-// the styles, built once. Frames come from a Feed on a tick tagged with a
+// pairs.go, focus.go, drift.go, planner.go, intake.go); keys.go holds the
+// bindings and styles.go the styles, built once. Frames come from a Feed on a tick tagged with a
 // generation number, so pausing and resuming never stacks two tick loops.
 package ui
 
@@ -17,6 +17,7 @@ import (
 
 	"bitsift/ingest"
 	"bitsift/model"
+	"bitsift/plan"
 )
 
 // Feed hands out frames of a running stream; ingest.Live is one.
@@ -27,6 +28,15 @@ type Feed interface {
 	// SetWindow asks for the figures to cover another window; it does not
 	// wait.
 	SetWindow(w model.Window)
+	// SetBaseline asks for a baseline (pin the window, or rolling); it
+	// does not wait.
+	SetBaseline(b ingest.BaselineChoice)
+	// Sample returns a copy of the newest raw lines, to measure a drop
+	// plan with; the screen calls it off its own goroutine, seldom.
+	Sample(ctx context.Context) (*plan.Sample, error)
+	// Pacer is the source's pace control (a replay), nil for a source
+	// that cannot be paused.
+	Pacer() ingest.Pacer
 }
 
 // Options tune the screen. The zero value of a field means its default.
@@ -45,6 +55,17 @@ type Options struct {
 	Renderer *lipgloss.Renderer
 	// Context ends frame requests when done (default: never).
 	Context context.Context
+	// DeepEvery is the spacing of deep snapshots (surprising records,
+	// determinants), taken while the Drift screen is on show (default
+	// 5 s).
+	DeepEvery time.Duration
+	// MeasureEvery is how often the plan on show is measured again with
+	// plan.Make while the Plan screen is on show (default 30 s; a pin
+	// measures at once).
+	MeasureEvery time.Duration
+	// Clock tells the time for "pinned at" and "measured at" (default
+	// time.Now; tests fix it).
+	Clock func() time.Time
 }
 
 // DefaultWindows are the windows the window key cycles through.
@@ -75,6 +96,15 @@ func (o Options) withDefaults() Options {
 	}
 	if o.Context == nil {
 		o.Context = context.Background()
+	}
+	if o.DeepEvery <= 0 {
+		o.DeepEvery = 5 * time.Second
+	}
+	if o.MeasureEvery <= 0 {
+		o.MeasureEvery = 30 * time.Second
+	}
+	if o.Clock == nil {
+		o.Clock = time.Now
 	}
 	return o
 }
