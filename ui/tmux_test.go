@@ -50,7 +50,7 @@ func (tt *tmuxTerm) capture() string {
 // waitFor polls the pane until it shows every one of want.
 func (tt *tmuxTerm) waitFor(want ...string) string {
 	tt.t.Helper()
-	deadline := time.Now().Add(20 * time.Second)
+	deadline := time.Now().Add(45 * time.Second)
 	var screen string
 	for time.Now().Before(deadline) {
 		screen = tt.capture()
@@ -141,7 +141,7 @@ func TestTmuxDemo(t *testing.T) {
 		screen = tt.capture()
 	}
 	tt.keys("x")
-	deadline := time.Now().Add(10 * time.Second)
+	deadline := time.Now().Add(30 * time.Second)
 	for {
 		screen = tt.capture()
 		if after := estimatedSaving(t, screen); after > before+10 {
@@ -259,7 +259,7 @@ func TestTmuxReplayPaced(t *testing.T) {
 		t.Fatalf("the paused replay went on from %d to %d lines", paused, n)
 	}
 	tt.keys("n")
-	deadline := time.Now().Add(10 * time.Second)
+	deadline := time.Now().Add(30 * time.Second)
 	for {
 		screen = tt.capture()
 		n := shownLines(t, screen)
