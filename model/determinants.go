@@ -145,8 +145,6 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 			}
 			h := d.tryTargets(p, []int{a, b}, open)
 			if triples {
-				// refine reads only the groups of a kept partition.
-				p.order, p.starts = nil, nil
 				// Targets not tried are bounded away from a determinant
 				// by more than H(c|a) can close for most c; try them
 				// at the triple level with the exact figure.
@@ -155,7 +153,9 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 						h[t] = math.NaN()
 					}
 				}
-				pairs[[2]int{a, b}] = sub{p, h}
+				// The pair's partition is not kept (it costs 4 bytes a
+				// record): the triples rebuild it, one pair at a time.
+				pairs[[2]int{a, b}] = sub{h: h}
 			}
 		}
 	}
@@ -190,6 +190,10 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 						continue
 					}
 					sort.Ints(open)
+					if p2.p == nil {
+						// Its work was counted when it was first built.
+						p2.p = d.partitionBy(nil, cands[x], cands[y])
+					}
 					p := d.refine(p2.p, c, -1)
 					if p == nil || len(p.sizes)*detMinPerGroup > n {
 						continue
@@ -274,10 +278,15 @@ func (d *detSearch) coveredFor(t int, set []int) bool {
 // refine returns the partition of base (nil: all records in one group) by
 // field a, then by field b (b < 0: none). nil when over the work cap.
 func (d *detSearch) refine(base *partition, a, b int) *partition {
-	n := d.n
-	if d.spend(n) {
+	if d.spend(d.n) {
 		return nil
 	}
+	return d.partitionBy(base, a, b)
+}
+
+// partitionBy is refine without the work count.
+func (d *detSearch) partitionBy(base *partition, a, b int) *partition {
+	n := d.n
 	ca := d.column(a)
 	var cb []uint32
 	if b >= 0 {
