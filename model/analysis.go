@@ -65,6 +65,7 @@ func (m *Model) analyse(s *Snapshot, opt SnapshotOptions) {
 		if k <= 0 {
 			k = 10
 		}
+		s.DeepRecords = m.deepRows()
 		s.Changes.Surprising = m.surprising(s, base, k)
 		s.Determinants, s.DeterminantsCut = m.determinants(s)
 	}

@@ -4,8 +4,9 @@ package model
 // value ids (a<<32 | b).
 //
 // While both ids stay small it is a dense matrix: an update is one indexed
-// add, no hashing. Once an id passes denseMaxSide (or the matrix would pass
-// denseMaxCells) it turns, for good, into an open-addressing hash map with
+// add, no hashing. Once the matrix would pass denseMaxCells, or
+// denseFillCells with less than a quarter of its cells in use, it turns,
+// for good, into an open-addressing hash map with
 // linear probing and backward-shift deletion, so that cells emptied by
 // records leaving the window free their slot. Written by hand because Go's
 // map costs several times as much per update on this, the hottest loop of
@@ -28,9 +29,16 @@ type cellMap struct {
 	s      int64
 }
 
+// The matrix is limited by its cells only, not by a side: a field of
+// thousands of values against one of a few (latency_ms × level) is a long
+// thin matrix, cheaper and faster than a hash map of the same cells. A hash
+// slot costs 12 bytes and there are at least 4/3 slots a cell, so about 16
+// bytes a cell in use against 4 a matrix cell: past denseFillCells (256 KB)
+// the matrix grows only while at least a quarter of it is in use, when it
+// costs no more than the hash map would; past denseMaxCells (16 MB), never.
 const (
-	denseMaxSide  = 1 << 10
-	denseMaxCells = 1 << 14
+	denseFillCells = 1 << 16
+	denseMaxCells  = 1 << 22
 )
 
 func newCellMap() *cellMap {
@@ -51,7 +59,7 @@ func (m *cellMap) denseAt(k uint64) int {
 	for a >= nh {
 		nh *= 2
 	}
-	if nw > denseMaxSide || nh > denseMaxSide || nw*nh > denseMaxCells {
+	if c := nw * nh; c > denseMaxCells || c > denseFillCells && uint64(m.len)*4 < c {
 		m.toHash()
 		return -1
 	}

@@ -31,6 +31,13 @@ import (
 // among at most detMaxTriple candidates. The work (record visits) is capped
 // at detMaxWork; past it the search stops and Snapshot.DeterminantsCut says
 // so. The search runs only for Deep snapshots.
+//
+// The records searched are the newest DeepMaxRecords of the window (see
+// deep.go). H(F|X), H(F) and E[I] are then exact over those records; the
+// pruning bounds read off the window's pair tables (pairBound, the triple
+// bound) are then estimates of the bounds over those records, and the
+// near-key test by pair cells, an upper bound over them, is left to the
+// partitions.
 const (
 	detMinPerGroup   = 8
 	detMaxCandidates = 16
@@ -69,11 +76,16 @@ type detSearch struct {
 	lookup []int32
 	cols   map[int][]uint32
 	fHists map[int]countHist
+	// lo is the window position of the first record searched and n the
+	// number searched (see DeepMaxRecords); hs caches H(F) over them when
+	// they are not the whole window.
+	lo, n int
+	hs    map[int]float64
 }
 
 // determinants runs the search (see above).
 func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
-	n := m.st.n
+	n := m.deepRows()
 	if n < 2*detMinPerGroup {
 		return []Determinant{}, false
 	}
@@ -92,7 +104,8 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 	if len(cands) > detMaxCandidates {
 		cands = cands[:detMaxCandidates]
 	}
-	d := &detSearch{m: m, s: s, found: map[int][][]int{}, fHists: map[int]countHist{}, cols: map[int][]uint32{}}
+	d := &detSearch{m: m, s: s, found: map[int][][]int{}, fHists: map[int]countHist{}, cols: map[int][]uint32{},
+		lo: m.st.n - n, n: n, hs: map[int]float64{}}
 	if len(targets) == 0 || len(cands) < 2 {
 		return []Determinant{}, false
 	}
@@ -109,7 +122,7 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 			if d.redundant(a, b) {
 				continue
 			}
-			if g := d.pairCells(a, b); g*detMinPerGroup > n {
+			if g := d.pairCells(a, b); g*detMinPerGroup > n && d.whole() {
 				nearKey[[2]int{a, b}] = true
 				continue
 			}
@@ -140,7 +153,9 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 						h[t] = math.NaN()
 					}
 				}
-				pairs[[2]int{a, b}] = sub{p, h}
+				// The pair's partition is not kept (it costs 4 bytes a
+				// record): the triples rebuild it, one pair at a time.
+				pairs[[2]int{a, b}] = sub{h: h}
 			}
 		}
 	}
@@ -175,6 +190,10 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 						continue
 					}
 					sort.Ints(open)
+					if p2.p == nil {
+						// Its work was counted when it was first built.
+						p2.p = d.partitionBy(nil, cands[x], cands[y])
+					}
 					p := d.refine(p2.p, c, -1)
 					if p == nil || len(p.sizes)*detMinPerGroup > n {
 						continue
@@ -259,11 +278,15 @@ func (d *detSearch) coveredFor(t int, set []int) bool {
 // refine returns the partition of base (nil: all records in one group) by
 // field a, then by field b (b < 0: none). nil when over the work cap.
 func (d *detSearch) refine(base *partition, a, b int) *partition {
-	m := d.m
-	n := m.st.n
-	if d.spend(n) {
+	if d.spend(d.n) {
 		return nil
 	}
+	return d.partitionBy(base, a, b)
+}
+
+// partitionBy is refine without the work count.
+func (d *detSearch) partitionBy(base *partition, a, b int) *partition {
+	n := d.n
 	ca := d.column(a)
 	var cb []uint32
 	if b >= 0 {
@@ -306,7 +329,7 @@ func (d *detSearch) refine(base *partition, a, b int) *partition {
 			sizes[g]++
 			group[r] = g
 		}
-		return newPartition(group, sizes)
+		return &partition{group: group, sizes: sizes}
 	}
 	ids := make(map[uint64]int32)
 	for r := 0; r < n; r++ {
@@ -325,12 +348,16 @@ func (d *detSearch) refine(base *partition, a, b int) *partition {
 		sizes[g]++
 		group[r] = g
 	}
-	return newPartition(group, sizes)
+	return &partition{group: group, sizes: sizes}
 }
 
-func newPartition(group, sizes []int32) *partition {
-	n := len(group)
-	p := &partition{group: group, sizes: sizes}
+// sort fills p's order and starts (jointS's group-by-group path needs
+// them; they double a partition's memory, so only then).
+func (p *partition) sort() {
+	if p.order != nil {
+		return
+	}
+	n, sizes, group := len(p.group), p.sizes, p.group
 	p.starts = make([]int32, len(sizes)+1)
 	for g, c := range sizes {
 		p.starts[g+1] = p.starts[g] + c
@@ -341,7 +368,6 @@ func newPartition(group, sizes []int32) *partition {
 		p.order[next[g]] = int32(r)
 		next[g]++
 	}
-	return p
 }
 
 func (d *detSearch) spend(w int) bool {
@@ -352,15 +378,15 @@ func (d *detSearch) spend(w int) bool {
 	return d.cut
 }
 
-// column returns field i's value ids, one per window record, oldest first.
+// column returns field i's value ids, one per record searched, oldest
+// first.
 func (d *detSearch) column(i int) []uint32 {
 	if c, ok := d.cols[i]; ok {
 		return c
 	}
-	n := d.m.st.n
-	c := make([]uint32, n)
-	for r := 0; r < n; r++ {
-		c[r] = idAt(d.m.st.row(r), i)
+	c := make([]uint32, d.n)
+	for r := range c {
+		c[r] = idAt(d.m.st.row(d.lo+r), i)
 	}
 	d.cols[i] = c
 	return c
@@ -370,7 +396,7 @@ func (d *detSearch) column(i int) []uint32 {
 // determinants, and returns the figures measured.
 func (d *detSearch) tryTargets(p *partition, set []int, targets []int) map[int]float64 {
 	m, s := d.m, d.s
-	n := float64(m.st.n)
+	n := float64(d.n)
 	sx := 0.0
 	for _, c := range p.sizes {
 		sx += clogf(c)
@@ -382,26 +408,22 @@ func (d *detSearch) tryTargets(p *partition, set []int, targets []int) map[int]f
 		for _, g := range set {
 			skip = skip || g == t
 		}
-		if skip || d.coveredFor(t, set) || d.spend(m.st.n) {
+		if skip || d.coveredFor(t, set) || d.spend(d.n) {
 			continue
 		}
 		h := nonNeg((sx - d.jointS(p, t)) / n)
 		got[t] = h
 		ft := &s.Fields[t]
-		if h > DerivedMaxResidual || h > 0.1*ft.Entropy || ft.Entropy <= 0 {
+		ht := d.entropy(t)
+		if h > DerivedMaxResidual || h > 0.1*ht || ht <= 0 {
 			continue
 		}
 		if xh == nil {
 			v := histOf(int32s(p.sizes))
 			xh = &v
 		}
-		fh, ok := d.fHists[t]
-		if !ok {
-			fh = histOf(m.fieldCounts(m.fields[t]))
-			d.fHists[t] = fh
-		}
-		emi, approx := expectedMI(fh, *xh)
-		rfi := (ft.Entropy - h - emi) / ft.Entropy
+		emi, approx := expectedMI(d.hist(t), *xh)
+		rfi := (ht - h - emi) / ht
 		if rfi < DerivedMinRFI {
 			continue
 		}
@@ -445,6 +467,7 @@ func (d *detSearch) jointS(p *partition, t int) float64 {
 	if len(d.scrat) < k {
 		d.scrat = make([]int32, k)
 	}
+	p.sort()
 	for g := range p.sizes {
 		for _, r := range p.order[p.starts[g]:p.starts[g+1]] {
 			id := fold(col[r])
@@ -476,4 +499,64 @@ func int32s(v []int32) []int {
 		out[i] = int(x)
 	}
 	return out
+}
+
+// whole says the search covers the whole window.
+func (d *detSearch) whole() bool {
+	return d.n == d.m.st.n
+}
+
+// subsetCounts is field t's count vector over the records searched,
+// absent included.
+func (d *detSearch) subsetCounts(t int) []int {
+	tab := make([]int, len(d.m.fields[t].counts)+1)
+	k := len(tab)
+	for _, id := range d.column(t) {
+		if id == overflow {
+			tab[k-1]++
+			continue
+		}
+		tab[id]++
+	}
+	out := tab[:0]
+	for _, c := range tab {
+		if c > 0 {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// hist is field t's count histogram over the records searched.
+func (d *detSearch) hist(t int) countHist {
+	if h, ok := d.fHists[t]; ok {
+		return h
+	}
+	var h countHist
+	if d.whole() {
+		h = histOf(d.m.fieldCounts(d.m.fields[t]))
+	} else {
+		h = histOf(d.subsetCounts(t))
+	}
+	d.fHists[t] = h
+	return h
+}
+
+// entropy is H(t) in bits over the records searched: the snapshot's figure
+// for the whole window, else from t's counts over them.
+func (d *detSearch) entropy(t int) float64 {
+	if d.whole() {
+		return d.s.Fields[t].Entropy
+	}
+	if h, ok := d.hs[t]; ok {
+		return h
+	}
+	sx := 0.0
+	for _, c := range d.subsetCounts(t) {
+		sx += clogf(int32(c))
+	}
+	n := float64(d.n)
+	h := nonNeg(math.Log2(n) - sx/n)
+	d.hs[t] = h
+	return h
 }

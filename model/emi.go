@@ -42,9 +42,15 @@ var lfact struct {
 func logFactorials(n int) []float64 {
 	lfact.Lock()
 	defer lfact.Unlock()
-	for k := len(lfact.t); k <= n; k++ {
-		v, _ := math.Lgamma(float64(k) + 1)
-		lfact.t = append(lfact.t, v)
+	if k := len(lfact.t); k <= n {
+		// Grown to size at once: appending one by one would leave about
+		// three times the table as garbage (8 bytes a record).
+		t := make([]float64, n+1)
+		copy(t, lfact.t)
+		for ; k <= n; k++ {
+			t[k], _ = math.Lgamma(float64(k) + 1)
+		}
+		lfact.t = t
 	}
 	return lfact.t[:n+1]
 }

@@ -101,6 +101,10 @@ type Snapshot struct {
 	Determinants []Determinant
 	// DeterminantsCut says the search stopped at its work bound.
 	DeterminantsCut bool
+	// DeepRecords is how many of the newest window records the
+	// determinants and surprising records cover (at most DeepMaxRecords;
+	// 0 without Deep).
+	DeepRecords int
 	// Changes compares the window with the baseline and lists surprising
 	// records (SnapshotOptions.Deep, or a baseline being set); nil
 	// otherwise.
@@ -204,9 +208,10 @@ type SnapshotOptions struct {
 	// per value of G (defaults 8 and 5).
 	DetailRows, DetailTop int
 	// Deep adds what needs a scan of the window's records: multi-field
-	// determinants and surprising records. It costs O(records·fields) and
-	// more (bounded, see determinants.go): take it at the end of a report
-	// or every few seconds on a screen, not every frame.
+	// determinants and surprising records, over the newest DeepMaxRecords
+	// records. It costs O(records·fields) and more (bounded, see
+	// determinants.go): take it at the end of a report or every few
+	// seconds on a screen, not every frame.
 	Deep bool
 	// Surprising is how many surprising records Deep keeps (default 10).
 	Surprising int

@@ -28,11 +28,11 @@ import (
 // So a break costs more than any value seen in the baseline, however rare
 // (at most log2(2N_b/3) bits), and outranks a merely rare record.
 //
-// The scan covers the newest surpriseMaxRows records of the window:
-// O(records·fields) table lookups per snapshot that asks for it (Deep).
+// The scan covers the newest DeepMaxRecords records of the window (see
+// deep.go): O(records·fields) table lookups per snapshot that asks for it
+// (Deep). The prices still come from the whole window's tables.
 const (
 	surprisePseudo  = 0.5
-	surpriseMaxRows = 1 << 19
 	surpriseBecause = 3
 	// surpriseExcess: a field is named in "because" when it cost at least
 	// this many bits more than its mean over the scanned records.
@@ -130,7 +130,7 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	if len(costs) == 0 || m.st.n == 0 || k <= 0 {
 		return []SurprisingRecord{}
 	}
-	rows := min(m.st.n, surpriseMaxRows)
+	rows := m.deepRows()
 	sum := make([]float64, len(costs))
 	h := &recHeap{}
 	for r := m.st.n - rows; r < m.st.n; r++ {

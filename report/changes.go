@@ -71,6 +71,7 @@ type Determinant struct {
 func addChanges(r *Report, s *model.Snapshot) {
 	r.Broken, r.Surprising, r.Determinants = []Broken{}, []Surprising{}, []Determinant{}
 	r.DeterminantsCut = s.DeterminantsCut
+	r.DeepRecords = s.DeepRecords
 	r.Profile = s.Profile
 	for _, d := range s.Determinants {
 		r.Determinants = append(r.Determinants, Determinant{d.Target, d.Given, round(d.Bits), round(d.RFI), d.EMIApprox})

@@ -18,6 +18,10 @@ const (
 // writeChanges adds the determinants, shifts, broken rules and surprising
 // records to a text report, each line within 80 columns.
 func writeChanges(b *strings.Builder, r *Report) {
+	if r.DeepRecords > 0 && r.DeepRecords < r.Records {
+		fmt.Fprintf(b, "\nDeterminants and surprising records: over the newest %d of %d records.\n",
+			r.DeepRecords, r.Records)
+	}
 	if len(r.Determinants) > 0 || r.DeterminantsCut {
 		b.WriteString("\nDeterminants of more than one field (together they fix the target):\n")
 		for i, d := range r.Determinants {

@@ -46,6 +46,10 @@ type Report struct {
 	// Determinants lists minimal multi-field determinants.
 	Determinants    []Determinant `json:"determinants"`
 	DeterminantsCut bool          `json:"determinants_cut,omitempty"`
+	// DeepRecords is how many of the newest records of the window the
+	// determinants and surprising records cover (see
+	// model.DeepMaxRecords); absent when they were not computed.
+	DeepRecords int `json:"deep_records,omitempty"`
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
 	Profile *model.Profile `json:"profile,omitempty"`
