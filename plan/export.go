@@ -40,6 +40,7 @@ type Export struct {
 	Constants       []ExportConst `json:"constants"`
 	Notes           []string      `json:"notes"`
 	Caution         string        `json:"caution"`
+	RuleCaution     string        `json:"rule_caution,omitempty"`
 }
 
 // ExportDeriv is one derived field: the fields it is rebuilt from and the
@@ -97,6 +98,7 @@ func (p *Plan) Export() *Export {
 		Schema: Schema, Records: p.Records, MaxLoss: p.MaxLoss, Drop: []string{}, Derive: []ExportDeriv{},
 		BitsLost: round(p.BitsLost), EntropyBound: round(p.EntropyAfter), BoundAll: round(p.EntropyBefore),
 		Lossless: p.Lossless, Format: p.Format, Constants: []ExportConst{}, Notes: p.Notes, Caution: Caution,
+		RuleCaution: ruleCaution(p),
 	}
 	if e.Notes == nil {
 		e.Notes = []string{}
@@ -147,4 +149,14 @@ func round(x float64) float64 {
 		return 0
 	}
 	return math.Round(x*1e6) / 1e6
+}
+
+// ruleCaution is RuleCaution for a plan that derives fields, else "".
+func ruleCaution(p *Plan) string {
+	for _, f := range p.Fields {
+		if f.Action == Derive {
+			return RuleCaution
+		}
+	}
+	return ""
 }

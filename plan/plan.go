@@ -47,6 +47,12 @@ import "bitsift/model"
 const Caution = "Caution: dropping fields deletes data that audits, security investigations " +
 	"and regulations may require. Check your retention obligations and local rules before applying this plan."
 
+// RuleCaution is shown beside a plan that derives fields: a derivation is
+// proven on the records measured, not on the records to come.
+const RuleCaution = "A derived field can be rebuilt only while the rule it follows holds. If the rule " +
+	"breaks later (a misrouted deploy, say), the dropped values are lost exactly when they matter: " +
+	"keep such fields where that evidence counts, and re-check the plan against a baseline."
+
 // Action is what a plan does with a field.
 type Action string
 

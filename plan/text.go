@@ -88,6 +88,11 @@ func WriteText(w io.Writer, p *Plan) error {
 	for _, line := range wrap(Caution, 90) {
 		b.WriteString(line + "\n")
 	}
+	if nv > 0 {
+		for _, line := range wrap(RuleCaution, 90) {
+			b.WriteString(line + "\n")
+		}
+	}
 	_, err := io.WriteString(w, b.String())
 	return err
 }
