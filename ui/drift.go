@@ -39,17 +39,7 @@ func (v driftView) setSize(w, h int) driftView {
 // Update handles scrolling.
 func (v driftView) Update(msg tea.Msg) (driftView, tea.Cmd) {
 	if s, ok := scrollOf(v.env.keys, msg, v.h); ok {
-		s = s.lines()
-		switch {
-		case s.top:
-			v.vp.GotoTop()
-		case s.bottom:
-			v.vp.GotoBottom()
-		case s.by < 0:
-			v.vp.ScrollUp(-s.by)
-		default:
-			v.vp.ScrollDown(s.by)
-		}
+		scrollViewport(&v.vp, s)
 	}
 	return v, nil
 }

@@ -1,6 +1,7 @@
 package ui
 
 import (
+	"github.com/charmbracelet/bubbles/viewport"
 	"time"
 
 	"github.com/charmbracelet/bubbles/key"
@@ -49,6 +50,21 @@ func (s scroll) lines() scroll {
 		s.by *= wheelLines
 	}
 	return s
+}
+
+// scrollViewport moves a viewport by s, in lines.
+func scrollViewport(vp *viewport.Model, s scroll) {
+	s = s.lines()
+	switch {
+	case s.top:
+		vp.GotoTop()
+	case s.bottom:
+		vp.GotoBottom()
+	case s.by < 0:
+		vp.ScrollUp(-s.by)
+	default:
+		vp.ScrollDown(s.by)
+	}
 }
 
 // scrollOf reads a movement from a message; ok is false for anything

@@ -101,17 +101,7 @@ func (v focusView) step(d int) focusView {
 func (v focusView) Update(msg tea.Msg) (focusView, tea.Cmd) {
 	k := v.env.keys
 	if s, ok := scrollOf(k, msg, v.h); ok {
-		s = s.lines()
-		switch {
-		case s.top:
-			v.vp.GotoTop()
-		case s.bottom:
-			v.vp.GotoBottom()
-		case s.by < 0:
-			v.vp.ScrollUp(-s.by)
-		default:
-			v.vp.ScrollDown(s.by)
-		}
+		scrollViewport(&v.vp, s)
 		return v, nil
 	}
 	if km, ok := msg.(tea.KeyMsg); ok {

@@ -44,17 +44,7 @@ func (v intakeView) jump(section string) intakeView {
 // Update handles scrolling.
 func (v intakeView) Update(msg tea.Msg) (intakeView, tea.Cmd) {
 	if s, ok := scrollOf(v.env.keys, msg, v.h); ok {
-		s = s.lines()
-		switch {
-		case s.top:
-			v.vp.GotoTop()
-		case s.bottom:
-			v.vp.GotoBottom()
-		case s.by < 0:
-			v.vp.ScrollUp(-s.by)
-		default:
-			v.vp.ScrollDown(s.by)
-		}
+		scrollViewport(&v.vp, s)
 	}
 	return v, nil
 }
