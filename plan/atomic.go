@@ -11,6 +11,12 @@ import (
 // file in the same folder, which is then renamed over path. A failure at
 // any step removes the temporary file and leaves path as it was.
 func WriteFile(path string, write func(io.Writer) error) (err error) {
+	// The rename would put a plain file in the place of a device, a pipe
+	// or a folder (as root, /dev/full itself): refuse anything but a
+	// regular file or a new name.
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		return fmt.Errorf("plan: %s is not a regular file; --out writes a file whole or not at all (leave out --out to write to standard output)", path)
+	}
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
 	if err != nil {
 		return fmt.Errorf("plan: cannot write %s: %w", path, err)

@@ -164,4 +164,12 @@ func TestWriteFileWholeOrNothing(t *testing.T) {
 	if err := WriteFile(filepath.Join(dir, "no", "such", "dir"), func(io.Writer) error { return nil }); err == nil {
 		t.Error("writing into a missing folder succeeded")
 	}
+	// A rename over a device would replace it with a plain file (as root,
+	// even /dev/null): anything but a regular file is refused.
+	if err := WriteFile(os.DevNull, func(io.Writer) error { return nil }); err == nil {
+		t.Errorf("writing over %s was allowed", os.DevNull)
+	}
+	if err := WriteFile(dir, func(io.Writer) error { return nil }); err == nil {
+		t.Error("writing over a folder was allowed")
+	}
 }
