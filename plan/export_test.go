@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 )
 
@@ -164,10 +165,18 @@ func TestWriteFileWholeOrNothing(t *testing.T) {
 	if err := WriteFile(filepath.Join(dir, "no", "such", "dir"), func(io.Writer) error { return nil }); err == nil {
 		t.Error("writing into a missing folder succeeded")
 	}
-	// A rename over a device would replace it with a plain file (as root,
-	// even /dev/null): anything but a regular file is refused.
-	if err := WriteFile(os.DevNull, func(io.Writer) error { return nil }); err == nil {
-		t.Errorf("writing over %s was allowed", os.DevNull)
+	// A rename over a device or a pipe would replace it with a plain file
+	// (as root, even /dev/full): anything but a regular file is refused. A
+	// pipe of the test's own stands for them.
+	fifo := filepath.Join(dir, "pipe")
+	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteFile(fifo, func(io.Writer) error { return nil }); err == nil {
+		t.Error("writing over a named pipe was allowed")
+	}
+	if fi, err := os.Lstat(fifo); err != nil || fi.Mode()&os.ModeNamedPipe == 0 {
+		t.Errorf("the pipe was replaced: %v %v", fi, err)
 	}
 	if err := WriteFile(dir, func(io.Writer) error { return nil }); err == nil {
 		t.Error("writing over a folder was allowed")
