@@ -22,6 +22,13 @@ import (
 // chosen.
 const detectLines = 64
 
+// MinConfidence is the least detection confidence (the winning format's
+// mean Sniff score over the sample) taken as a format: below it the sample
+// is mostly something else (binary data, free text), and reading it as the
+// best of poor matches would turn noise into records. Every line is then
+// rejected, saying to give --format or --pattern.
+const MinConfidence = 0.25
+
 // keptRejections is how many rejected lines are kept as examples.
 const keptRejections = 20
 
@@ -198,7 +205,7 @@ func (in *Ingester) start() {
 			sample[i] = p.text
 		}
 		d, err := parse.Detect(sample)
-		if err != nil || d.Confidence == 0 {
+		if err != nil || d.Confidence < MinConfidence {
 			// Nothing recognisable: every line is rejected with that
 			// reason, so nothing vanishes unexplained.
 			d.Format, d.Confidence = unknownFormat{}, 0

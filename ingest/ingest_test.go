@@ -3,6 +3,7 @@ package ingest
 import (
 	"context"
 	"fmt"
+	"math/rand/v2"
 	"strings"
 	"testing"
 	"time"
@@ -106,5 +107,27 @@ func TestPatternConfig(t *testing.T) {
 		if _, err := New(cfg); err == nil {
 			t.Errorf("New(%+v) accepted", cfg)
 		}
+	}
+}
+
+// TestNoiseIsNoFormat: random bytes match no format well; rather than
+// reading the best of poor matches as records, every line is rejected.
+func TestNoiseIsNoFormat(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 9))
+	var b strings.Builder
+	for i := 0; i < 500; i++ {
+		for j := 0; j < 60; j++ {
+			c := byte(r.IntN(256))
+			if c == '\n' {
+				c = '='
+			}
+			b.WriteByte(c)
+		}
+		b.WriteByte('\n')
+	}
+	s := ingestText(t, Config{}, b.String())
+	if s.Records != 0 || s.Input.Rejected != 500 || s.Input.Format != "unknown" {
+		t.Errorf("format %s (%.2f): %d records, %d rejected; want unknown, 0 and 500",
+			s.Input.Format, s.Input.Confidence, s.Records, s.Input.Rejected)
 	}
 }
