@@ -67,3 +67,7 @@ func (r *Redactor) Apply(rec *parse.Record) {
 func (r *Redactor) Redacting(field string) bool {
 	return r != nil && (r.fields == nil || r.fields[field])
 }
+
+// Redacting says whether the Ingester replaces values by keyed hashes, in
+// which case nothing may keep the raw lines either.
+func (in *Ingester) Redacting() bool { return in.redact != nil }
