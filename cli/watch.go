@@ -48,7 +48,8 @@ for --idle, then prints the text report.`,
 			return c.run(cmd.Context(), std, args[0])
 		},
 	}
-	c.register(cmd, "all")
+	// A live stream has no end: a bounded window keeps memory bounded.
+	c.register(cmd, watchWindow)
 	fs := cmd.Flags()
 	fs.BoolVar(&c.fromStart, "from-start", false, "read the file from its first line (default: from its end)")
 	fs.IntVar(&c.lines, "lines", 0, "begin this many lines before the end")
@@ -169,3 +170,8 @@ func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Sourc
 	}
 	return inputError(readErr, snap)
 }
+
+// watchWindow is watch's default window: the last 100,000 records, as on
+// the demo's screen, so that following a busy service for hours keeps
+// memory bounded; --window all covers everything since the start.
+const watchWindow = "100k"
