@@ -7,7 +7,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"sync"
 	"time"
 
 	"github.com/fsnotify/fsnotify"
@@ -99,8 +98,7 @@ type Follower struct {
 	missing  bool
 	lastLine time.Time
 
-	mu     sync.Mutex
-	status SourceStatus
+	statusBox
 }
 
 // NewFollower follows path ("-": standard input) with opt. It fails only
@@ -435,12 +433,6 @@ func (fl *Follower) note(s string) {
 	fl.mu.Unlock()
 }
 
-func (fl *Follower) event(kind, detail string) {
-	fl.mu.Lock()
-	fl.status.Events = append(fl.status.Events, SourceEvent{Time: time.Now(), Kind: kind, Detail: detail})
-	fl.mu.Unlock()
-}
-
 // end stops following: Next returns io.EOF from now on.
 func (fl *Follower) end() {
 	fl.ended = true
@@ -459,15 +451,6 @@ func (fl *Follower) closeFiles() {
 		c.close()
 	}
 	fl.queue = nil
-}
-
-// Status implements Source.
-func (fl *Follower) Status() SourceStatus {
-	fl.mu.Lock()
-	defer fl.mu.Unlock()
-	s := fl.status
-	s.Events = append([]SourceEvent(nil), s.Events...)
-	return s
 }
 
 // Close implements Source. It must not be called during Next.

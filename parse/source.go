@@ -6,7 +6,6 @@ import (
 	"errors"
 	"io"
 	"os"
-	"sync"
 	"time"
 )
 
@@ -80,10 +79,9 @@ type FileSource struct {
 	idx   int
 	name  string
 
-	mu     sync.Mutex
-	status SourceStatus
-	count  *countingReader
-	buf    *bufio.Reader // between count and the decompressor
+	statusBox
+	count *countingReader
+	buf   *bufio.Reader // between count and the decompressor
 }
 
 // NewFileSource reads paths in order with lines of at most maxLine bytes.
@@ -212,21 +210,6 @@ func (fs *FileSource) setState(s SourceState) {
 	fs.mu.Lock()
 	fs.status.State = s
 	fs.mu.Unlock()
-}
-
-func (fs *FileSource) event(kind, detail string) {
-	fs.mu.Lock()
-	fs.status.Events = append(fs.status.Events, SourceEvent{Time: time.Now(), Kind: kind, Detail: detail})
-	fs.mu.Unlock()
-}
-
-// Status implements Source.
-func (fs *FileSource) Status() SourceStatus {
-	fs.mu.Lock()
-	defer fs.mu.Unlock()
-	s := fs.status
-	s.Events = append([]SourceEvent(nil), s.Events...)
-	return s
 }
 
 // Close implements Source.
