@@ -112,3 +112,16 @@ func (s scroll) apply(cur, n int) int {
 	}
 	return max(0, min(n-1, cur+s.by))
 }
+
+// keepInView clamps a list cursor to n rows and moves the first row shown
+// (offset) so that the cursor stays within a page of h rows.
+func keepInView(cursor, offset, n, h int) (int, int) {
+	cursor = max(0, min(cursor, n-1))
+	if cursor < offset {
+		offset = cursor
+	}
+	if cursor >= offset+h {
+		offset = cursor - h + 1
+	}
+	return cursor, max(0, min(offset, n-h))
+}

@@ -165,15 +165,7 @@ func abs(x float64) float64 {
 }
 
 func (v fieldsView) clamp() fieldsView {
-	v.cursor = max(0, min(v.cursor, len(v.rows)-1))
-	h := v.listHeight()
-	if v.cursor < v.offset {
-		v.offset = v.cursor
-	}
-	if v.cursor >= v.offset+h {
-		v.offset = v.cursor - h + 1
-	}
-	v.offset = max(0, min(v.offset, len(v.rows)-h))
+	v.cursor, v.offset = keepInView(v.cursor, v.offset, len(v.rows), v.listHeight())
 	if f := v.env.frame; f != nil && v.cursor < len(v.rows) {
 		v.sel = f.Snap.Fields[v.rows[v.cursor]].Name
 	}

@@ -100,15 +100,7 @@ func (v plannerView) refresh() plannerView {
 }
 
 func (v plannerView) clamp() plannerView {
-	v.cursor = max(0, min(v.cursor, len(v.rows)-1))
-	h := v.listHeight()
-	if v.cursor < v.offset {
-		v.offset = v.cursor
-	}
-	if v.cursor >= v.offset+h {
-		v.offset = v.cursor - h + 1
-	}
-	v.offset = max(0, min(v.offset, len(v.rows)-h))
+	v.cursor, v.offset = keepInView(v.cursor, v.offset, len(v.rows), v.listHeight())
 	if v.cur != nil && v.cursor < len(v.rows) {
 		v.sel = v.cur.Fields[v.rows[v.cursor]].Name
 	}
