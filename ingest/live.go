@@ -62,6 +62,9 @@ const (
 // reader to the owner in batches (see handoff), never one message per line;
 // a request is answered between two runs of at most chunkLines lines.
 type Live struct {
+	// ctx ends with the Live: a snapshot being taken then is given up,
+	// so that Stop never waits for a deep analysis.
+	ctx context.Context
 	in  *Ingester
 	src parse.Source
 	h   *handoff
@@ -121,6 +124,7 @@ func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt Live
 		tap:       opt.Tap,
 	}
 	in.AddSource(src.Status().Name)
+	l.ctx = ctx
 	go l.read(ctx)
 	go l.run(ctx)
 	return l
@@ -185,6 +189,9 @@ func (l *Live) setBaseline(b BaselineChoice) {
 func (l *Live) takeBatch(b *batch) {
 	for i, bl := range b.lines {
 		if i%chunkLines == chunkLines-1 {
+			if l.ctx.Err() != nil {
+				return // stopping: nobody will read the figures
+			}
 			l.serve()
 		}
 		if bl.err != nil {
@@ -234,7 +241,10 @@ func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	// The source's events (rotations, truncations, gaps) go into the
 	// input accounting, so that the snapshot lists them as a report does.
 	l.in.SetEvents(status.Events)
-	snap := l.in.Snapshot(opt)
+	snap, err := l.in.SnapshotContext(l.ctx, opt)
+	if err != nil {
+		return nil // stopping: Frame's caller gets ErrStopped
+	}
 	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
 		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
 	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
@@ -272,6 +282,9 @@ func (l *Live) Frame(ctx context.Context, opt model.SnapshotOptions) (*Frame, er
 	}
 	select {
 	case f := <-r.reply:
+		if f == nil {
+			return nil, ErrStopped
+		}
 		return f, nil
 	case <-ctx.Done():
 		return nil, ctx.Err()

@@ -372,7 +372,7 @@ func (p *partition) sort() {
 
 func (d *detSearch) spend(w int) bool {
 	d.work += w
-	if d.work > detMaxWork {
+	if d.work > detMaxWork || d.m.cancelled() {
 		d.cut = true
 	}
 	return d.cut
@@ -386,6 +386,10 @@ func (d *detSearch) column(i int) []uint32 {
 	}
 	c := make([]uint32, d.n)
 	for r := range c {
+		if r%cancelEvery == 0 && d.m.cancelled() {
+			d.cut = true // the snapshot is not wanted any more: no use finishing
+			break
+		}
 		c[r] = idAt(d.m.st.row(d.lo+r), i)
 	}
 	d.cols[i] = c

@@ -134,6 +134,9 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	sum := make([]float64, len(costs))
 	h := &recHeap{}
 	for r := m.st.n - rows; r < m.st.n; r++ {
+		if r%cancelEvery == 0 && m.cancelled() {
+			return []SurprisingRecord{}
+		}
 		row := m.st.row(r)
 		total := 0.0
 		for j, c := range costs {
