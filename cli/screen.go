@@ -73,4 +73,3 @@ func containsWindow(ws []ui.Window, w ui.Window) bool {
 	}
 	return false
 }
-
