@@ -26,6 +26,7 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	in.UseRollingBaseline()
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
+	selfStopping.Store(true) // the screen restores the terminal, then ends
 	live := ui.StartLive(ctx, in, src)
 	defer func() {
 		// A snapshot being taken gives up when ctx ends (the deep
