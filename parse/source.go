@@ -84,7 +84,7 @@ type FileSource struct {
 	ctx      context.Context // of the Next call under way: reads give up when it ends
 	stopRead func() bool     // undoes the context's hold on the open file
 	count    *countingReader
-	buf   *bufio.Reader // between count and the decompressor
+	buf      *bufio.Reader // between count and the decompressor
 }
 
 // NewFileSource reads paths in order with lines of at most maxLine bytes.
