@@ -14,6 +14,7 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"bitsift/companion"
 	"bitsift/model"
 	"bitsift/parse"
 )
@@ -49,8 +50,11 @@ type Config struct {
 	// RedactFields names the fields, or every field when empty.
 	Redact       bool
 	RedactFields []string
-	// NoCompanions turns off the fields bitsift adds (see companions.go).
+	// NoCompanions turns off the fields bitsift adds (package companion).
 	NoCompanions bool
+	// Templates names fields that get a FIELD~template companion whatever
+	// the sample says (--template FIELD).
+	Templates []string
 	// AnalyseTime analyses the timestamp field like any other; by default
 	// it is marked and left out of pairs (see model.Model.SetTimestamp).
 	AnalyseTime bool
@@ -66,7 +70,7 @@ type Ingester struct {
 	rec    parse.Record
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
-	comp   companions
+	comp   companion.Set
 	// timeMarked: the timestamp field found has been marked in the model.
 	timeMarked bool
 
@@ -241,9 +245,7 @@ func (in *Ingester) start() {
 		for i := range recs {
 			sample[i] = &recs[i].rec
 		}
-		in.comp = chooseCompanions(sample)
-		in.comp.declare(in.model)
-		in.comp.warm(sample)
+		in.chooseCompanions(sample)
 	}
 	for i := range recs {
 		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
@@ -300,7 +302,7 @@ func (in *Ingester) add(num int64) {
 // commit adds the companions to a parsed record, redacts it, and takes it
 // into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64) {
-	in.comp.apply(rec)
+	in.comp.Apply(rec)
 	if in.redact != nil {
 		// After the companions, so that templates are hashed too.
 		in.redact.Apply(rec)
@@ -341,6 +343,7 @@ func (in *Ingester) Flush() {
 // Snapshot takes a snapshot of the model with the input accounting.
 func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s := in.model.Snapshot(opt)
+	in.labelTemplates(s)
 	s.Input = in.input
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
 	s.Input.RejectedExamples = append([]model.Rejection(nil), in.input.RejectedExamples...)
