@@ -23,6 +23,7 @@ type streamFlags struct {
 	redact       bool
 	redactFields []string
 	analyseTime  bool
+	templates    []string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -34,6 +35,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
+	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -45,7 +47,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates}
 	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}

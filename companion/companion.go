@@ -69,8 +69,10 @@ type Options struct {
 // Set is the companions of a stream, in the order of their sources' first
 // appearance. The zero Set has none.
 type Set struct {
-	list   []Companion
-	byName map[string]Companion
+	list      []Companion
+	byName    map[string]Companion
+	recording *Recording // see replay.go
+	replay    *Recording
 }
 
 // List returns the companions.
@@ -249,6 +251,10 @@ func (s *Set) Apply(rec *parse.Record) {
 	for _, c := range s.list {
 		v, ok := rec.Get(c.Source())
 		if !ok {
+			continue
+		}
+		if t, ok := c.(*Templates); ok {
+			s.applyTemplate(t, v, rec)
 			continue
 		}
 		rec.AddKV(c.Name(), c.Value(v))

@@ -17,6 +17,12 @@ func (in *Ingester) chooseCompanions(sample []*parse.Record) {
 	if in.comp.Len() == 0 {
 		in.comp = *more
 		in.comp.Declare(in.model)
+		if in.recordTemplates != nil {
+			in.comp.Record(in.recordTemplates)
+		}
+		if in.replayTemplates != nil {
+			in.comp.Replay(in.replayTemplates)
+		}
 	} else {
 		companion.Declare(in.model, in.comp.Merge(more))
 	}

@@ -58,6 +58,8 @@ type Config struct {
 	// AnalyseTime analyses the timestamp field like any other; by default
 	// it is marked and left out of pairs (see model.Model.SetTimestamp).
 	AnalyseTime bool
+	// Observer, when set, sees what becomes of every line (annotate.go).
+	Observer Observer
 }
 
 // Ingester turns lines into model records.
@@ -71,6 +73,8 @@ type Ingester struct {
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
 	comp   companion.Set
+	// recordTemplates and replayTemplates: see annotate.go.
+	recordTemplates, replayTemplates *companion.Recording
 	// timeMarked: the timestamp field found has been marked in the model.
 	timeMarked bool
 
@@ -145,6 +149,7 @@ func (in *Ingester) Model() *model.Model { return in.model }
 // be reused by the caller after Line returns.
 func (in *Ingester) Line(line []byte, num int64, source string) {
 	in.input.Lines++
+	in.observeLine(num, source)
 	if !in.started {
 		in.pending = append(in.pending, pendingLine{bytes.Clone(line), num, source})
 		if len(bytes.TrimSpace(line)) > 0 {
@@ -158,18 +163,22 @@ func (in *Ingester) Line(line []byte, num int64, source string) {
 		return
 	}
 	if in.read(line, num, source) {
-		in.add(num)
+		in.add(num, source)
 	}
 }
 
 // Reject counts a line that could not even be read as a line (too long).
 func (in *Ingester) Reject(num int64, source, reason string) {
 	in.input.Lines++
+	in.observeLine(num, source)
 	in.reject(num, source, reason, nil)
 }
 
 func (in *Ingester) reject(num int64, source, reason string, text []byte) {
 	in.input.Rejected++
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Rejected(num, source, reason)
+	}
 	if in.redact != nil {
 		text = nil // a rejected line may hold the very values being hidden
 	}
@@ -219,9 +228,10 @@ func (in *Ingester) start() {
 	pending := in.pending
 	in.pending = nil
 	type sampled struct {
-		rec  parse.Record
-		num  int64
-		time int64
+		rec    parse.Record
+		num    int64
+		time   int64
+		source string
 	}
 	var recs []sampled
 	for i, p := range pending {
@@ -230,14 +240,14 @@ func (in *Ingester) start() {
 			// but into the sample).
 			for in.rec.Reset(); in.joiner.Flush(&in.rec); in.rec.Reset() {
 				in.input.Parts--
-				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime()})
+				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime(), source: pending[i-1].source})
 				recs[len(recs)-1].rec.CopyFrom(&in.rec)
 			}
 		}
 		if !in.read(p.text, p.num, p.source) {
 			continue
 		}
-		recs = append(recs, sampled{num: p.num, time: in.recTime()})
+		recs = append(recs, sampled{num: p.num, time: in.recTime(), source: p.source})
 		recs[len(recs)-1].rec.CopyFrom(&in.rec)
 	}
 	if !in.cfg.NoCompanions {
@@ -248,7 +258,7 @@ func (in *Ingester) start() {
 		in.chooseCompanions(sample)
 	}
 	for i := range recs {
-		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
+		in.commit(&recs[i].rec, recs[i].num, recs[i].time, recs[i].source)
 	}
 }
 
@@ -267,6 +277,9 @@ func (in *Ingester) read(line []byte, num int64, source string) bool {
 		return true
 	case errors.Is(err, parse.ErrPart):
 		in.input.Parts++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Part(num, source)
+		}
 		return false
 	}
 	in.reject(num, source, err.Error(), line)
@@ -295,19 +308,22 @@ func (in *Ingester) markTime() {
 }
 
 // add takes the record in in.rec, read from line num, into the model.
-func (in *Ingester) add(num int64) {
-	in.commit(&in.rec, num, in.recTime())
+func (in *Ingester) add(num int64, source string) {
+	in.commit(&in.rec, num, in.recTime(), source)
 }
 
 // commit adds the companions to a parsed record, redacts it, and takes it
 // into the model.
-func (in *Ingester) commit(rec *parse.Record, num, t int64) {
+func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
 	in.comp.Apply(rec)
 	if in.redact != nil {
 		// After the companions, so that templates are hashed too.
 		in.redact.Apply(rec)
 	}
 	in.model.Add(rec, num, t)
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Record(rec, num, source, t)
+	}
 }
 
 // endSource closes records left open at the end of a source (CRI partial
@@ -323,7 +339,7 @@ func (in *Ingester) endSource() {
 			return
 		}
 		in.input.Parts--
-		in.add(in.lastNum)
+		in.add(in.lastNum, in.lastSource)
 	}
 }
 

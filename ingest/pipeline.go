@@ -191,6 +191,7 @@ func (in *Ingester) takeBatch(b *lineBatch) {
 	for i := range b.lines {
 		l := &b.lines[i]
 		in.input.Lines++
+		in.observeLine(l.num, l.source)
 		switch {
 		case l.tooLong:
 			in.reject(l.num, l.source, "line longer than --max-line", nil)
@@ -205,7 +206,7 @@ func (in *Ingester) takeBatch(b *lineBatch) {
 			} else {
 				in.markTime()
 			}
-			in.commit(&b.recs[i], l.num, t)
+			in.commit(&b.recs[i], l.num, t, l.source)
 		}
 	}
 }
