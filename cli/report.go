@@ -139,6 +139,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
 	}
+	if err := readNotes(std, in); err != nil {
+		return err
+	}
 	return inputError(readErr, snap)
 }
 

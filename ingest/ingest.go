@@ -73,6 +73,7 @@ type Ingester struct {
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
 	comp   companion.Set
+	det    detectState // detect.go
 	// recordTemplates and replayTemplates: see annotate.go.
 	recordTemplates, replayTemplates *companion.Recording
 	// timeMarked: the timestamp field found has been marked in the model.
@@ -212,18 +213,20 @@ func (in *Ingester) Fault(source string, err error) {
 // into the model.
 func (in *Ingester) start() {
 	in.started = true
+	sample := make([][]byte, len(in.pending))
+	for i, p := range in.pending {
+		sample[i] = p.text
+	}
+	in.checkForced(sample)
 	if in.format == nil {
-		sample := make([][]byte, len(in.pending))
-		for i, p := range in.pending {
-			sample[i] = p.text
-		}
-		d, err := parse.Detect(sample)
+		d, err := parse.Detect(in.detectionSample(sample))
 		if err != nil || d.Confidence < MinConfidence {
 			// Nothing recognisable: every line is rejected with that
 			// reason, so nothing vanishes unexplained.
 			d.Format, d.Confidence = unknownFormat{}, 0
 		}
 		in.setFormat(d.Format, d.Confidence)
+		in.formatChosen()
 	}
 	pending := in.pending
 	in.pending = nil
@@ -255,6 +258,9 @@ func (in *Ingester) start() {
 		for i := range recs {
 			sample[i] = &recs[i].rec
 		}
+		if len(pending) > 0 {
+			sample = append(sample, in.spreadRecords(pending[0].source)...)
+		}
 		in.chooseCompanions(sample)
 	}
 	for i := range recs {
@@ -274,6 +280,7 @@ func (in *Ingester) read(line []byte, num int64, source string) bool {
 	err := in.format.Parse(line, &in.rec)
 	switch {
 	case err == nil:
+		in.accepted()
 		return true
 	case errors.Is(err, parse.ErrPart):
 		in.input.Parts++
@@ -283,6 +290,7 @@ func (in *Ingester) read(line []byte, num int64, source string) bool {
 		return false
 	}
 	in.reject(num, source, err.Error(), line)
+	in.rejected(line)
 	return false
 }
 
@@ -376,8 +384,12 @@ func (in *Ingester) TimeKey() string { return in.times.Key() }
 func (in *Ingester) Take(l parse.Line) {
 	if l.Source != in.lastSource {
 		// A record split over lines does not run on into the next input.
+		if !in.started && in.det.perFile && len(in.pending) > 0 {
+			in.start() // the last file was shorter than the sample
+		}
 		if in.started && in.lastSource != "" {
 			in.endSource()
+			in.nextFile()
 		}
 		in.lastSource = l.Source
 	}
@@ -452,6 +464,7 @@ var errDone = errors.New("source ended")
 // or zstd. It goes on past a file that fails, and returns the first fault.
 func (in *Ingester) ReadFiles(ctx context.Context, paths []string) error {
 	in.input.Sources = append(in.input.Sources, paths...)
+	in.prepareFiles(paths)
 	src := parse.NewFileSource(paths, in.cfg.MaxLine)
 	src.Stdin = in.cfg.Stdin
 	defer src.Close()
