@@ -55,6 +55,9 @@ type Config struct {
 	// AnalyseTime analyses the timestamp field like any other; by default
 	// it is marked and left out of pairs (see model.Model.SetTimestamp).
 	AnalyseTime bool
+	// RedactKey, when set, is the redaction key (see NewRedactorWithKey)
+	// instead of one drawn at random for the run.
+	RedactKey []byte
 }
 
 // Ingester turns lines into model records.
@@ -100,7 +103,7 @@ func New(cfg Config) (*Ingester, error) {
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
 	in.times.Now = cfg.Clock
 	if cfg.Redact || len(cfg.RedactFields) > 0 {
-		r, err := NewRedactor(cfg.RedactFields)
+		r, err := newRedactorFor(cfg)
 		if err != nil {
 			return nil, err
 		}
