@@ -267,8 +267,14 @@ func (in *Ingester) start() {
 			sample[i] = &recs[i].rec
 		}
 		in.comp = chooseCompanions(sample)
+		in.comp.unredacted(in.redact)
 		in.comp.declare(in.model)
 		in.comp.warm(sample)
+	}
+	if in.redact != nil {
+		for i := range recs {
+			in.redact.Observe(&recs[i].rec)
+		}
 	}
 	for i := range recs {
 		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
@@ -331,7 +337,8 @@ func (in *Ingester) add(num int64) {
 func (in *Ingester) commit(rec *parse.Record, num, t int64) {
 	in.comp.apply(rec)
 	if in.redact != nil {
-		// After the companions, so that templates are hashed too.
+		// After the companions, which are made only from fields that are
+		// not redacted (companions.unredacted).
 		in.redact.Apply(rec)
 	}
 	in.model.Add(rec, num, t)
