@@ -174,6 +174,19 @@ func (s *Set) add(c Companion) {
 	s.byName[c.Name()] = c
 }
 
+// Keep keeps only the companions for which keep is true.
+func (s *Set) Keep(keep func(Companion) bool) {
+	kept := s.list[:0]
+	for _, c := range s.list {
+		if keep(c) {
+			kept = append(kept, c)
+		} else {
+			delete(s.byName, c.Name())
+		}
+	}
+	s.list = kept
+}
+
 // Merge adds the companions of o whose names s does not have yet, and
 // returns them (to be declared).
 func (s *Set) Merge(o *Set) []Companion {

@@ -14,6 +14,12 @@ import (
 // adds companions for fields the earlier ones did not choose.
 func (in *Ingester) chooseCompanions(sample []*parse.Record) {
 	more := companion.Choose(sample, companion.Options{Templates: in.cfg.Templates})
+	if in.redact != nil {
+		// Nothing may be derived from a value that is meant to be hidden:
+		// a template keeps a message's words, a bucket a number's range
+		// (and a hash has neither).
+		more.Keep(func(c companion.Companion) bool { return !in.redact.Redacting(c.Source()) })
+	}
 	if in.comp.Len() == 0 {
 		in.comp = *more
 		in.comp.Declare(in.model)
