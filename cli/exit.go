@@ -9,6 +9,7 @@ import (
 	"sync/atomic"
 	"syscall"
 
+	"bitsift/ingest"
 	"bitsift/model"
 )
 
@@ -18,8 +19,9 @@ const (
 	// terminal, an --out file that cannot be made), whatever the input.
 	ExitWrite = 4
 	// ExitNoRecords: the input was read but held no record (it was empty,
-	// or every line was rejected: a wrong --format, binary data).
-	ExitNoRecords = 5
+	// or every line was rejected: a wrong --format, binary data): as
+	// ExitUnreadable, nothing of it could be read.
+	ExitNoRecords = ExitUnreadable
 	// ExitInterrupted is 128 + SIGINT, the shell's convention; SIGTERM
 	// gives 128 + 15 = 143.
 	ExitInterrupted = 130
@@ -94,9 +96,21 @@ func writeError(err error) error {
 	return &ExitError{Code: ExitWrite, Err: fmt.Errorf("writing the output: %w", err)}
 }
 
-// noRecords is the error of a run that read lines but made no record of
-// them, naming the likely cause and the way out; nil when there were
-// records.
+// outcome is the exit of a run whose output is written: a fault of the
+// input first (2 or 3), then a run with no record (readNotes names the
+// first lines and the way out; noRecords an empty input).
+func outcome(std IO, in *ingest.Ingester, readErr error, snap *model.Snapshot) error {
+	if err := inputError(readErr, snap); err != nil {
+		return err
+	}
+	if err := readNotes(std, in); err != nil {
+		return err
+	}
+	return noRecords(snap)
+}
+
+// noRecords is the error of a run that made no record, naming the likely
+// cause and the way out; nil when there were records.
 func noRecords(snap *model.Snapshot) error {
 	if snap.Records > 0 {
 		return nil

@@ -6,6 +6,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"syscall"
@@ -113,7 +114,8 @@ func TestNeverHangOnFIFOOrEndlessLine(t *testing.T) {
 			if err := cmd.Start(); err != nil {
 				t.Fatal(err)
 			}
-			time.Sleep(300 * time.Millisecond) // it is blocked, or reading the endless line, by now
+			waitOpening(t, cmd.Process.Pid, args[len(args)-1])
+			time.Sleep(100 * time.Millisecond) // blocked in open, or reading the endless line
 			t0 := time.Now()
 			cmd.Process.Signal(sig)
 			done := make(chan error, 1)
@@ -137,7 +139,7 @@ func TestNeverHangOnFIFOOrEndlessLine(t *testing.T) {
 }
 
 // TestAllRejectedExitsNonZero: a run where every line is rejected (binary
-// data; a forced wrong --format) or that reads no line exits 5 and names
+// data; a forced wrong --format) or that reads no line exits 2 and names
 // the cause and the way out.
 func TestAllRejectedExitsNonZero(t *testing.T) {
 	bin := make([]byte, 4096)
@@ -149,9 +151,9 @@ func TestAllRejectedExitsNonZero(t *testing.T) {
 		args []string
 		want []string
 	}{
-		{[]string{"report", write(t, "blob.bin", bin)}, []string{"rejected", "--format", "--pattern"}},
-		{[]string{"report", "-o", "json", "--format", "json", logfmt}, []string{"all 2 lines were rejected", "read as json", "--format"}},
-		{[]string{"plan", "--format", "json", logfmt}, []string{"all 2 lines were rejected", "--format"}},
+		{[]string{"report", write(t, "blob.bin", bin)}, []string{"no line could be read", "--format", "--pattern"}},
+		{[]string{"report", "-o", "json", "--format", "json", logfmt}, []string{"no line could be read", "not a JSON object", "--format"}},
+		{[]string{"plan", "--format", "json", logfmt}, []string{"no line could be read", "--format"}},
 		{[]string{"report", write(t, "empty.log", nil)}, []string{"the input was empty"}},
 	} {
 		code, _, errs := run(t, "", c.args...)
@@ -205,4 +207,48 @@ func TestJSONFieldsNeverNull(t *testing.T) {
 	if strings.Contains(out, "null") || !strings.Contains(out, `"fields": []`) {
 		t.Errorf("JSON with a null list:\n%s", out)
 	}
+}
+
+// waitOpening waits until the process opens path (Linux: its links in
+// /proc/PID/fd; opening an input comes after the signal handlers are set),
+// so that the signal tests the program's handling, not a process still
+// starting up. A FIFO with no writer is not open until one comes, so for
+// it the process's own folder is watched for the thread stuck in open.
+func waitOpening(t *testing.T, pid int, path string) {
+	t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	fi, _ := os.Stat(path)
+	fifo := fi != nil && fi.Mode()&os.ModeNamedPipe != 0
+	for time.Now().Before(deadline) {
+		dir := filepath.Join("/proc", strconv.Itoa(pid))
+		if _, err := os.Stat(dir); err != nil {
+			time.Sleep(time.Second) // no /proc: give it time
+			return
+		}
+		if fifo {
+			// The main thread's syscall: openat (257 on amd64, 56 on
+			// arm64) while it waits for a writer.
+			if b, err := os.ReadFile(filepath.Join(dir, "syscall")); err == nil {
+				if f := strings.Fields(string(b)); len(f) > 0 && (f[0] == "257" || f[0] == "56") {
+					return
+				}
+			}
+			// Another thread may be the one in open.
+			tasks, _ := os.ReadDir(filepath.Join(dir, "task"))
+			for _, task := range tasks {
+				b, err := os.ReadFile(filepath.Join(dir, "task", task.Name(), "syscall"))
+				if f := strings.Fields(string(b)); err == nil && len(f) > 0 && (f[0] == "257" || f[0] == "56") {
+					return
+				}
+			}
+		}
+		links, _ := os.ReadDir(filepath.Join(dir, "fd"))
+		for _, l := range links {
+			if target, err := os.Readlink(filepath.Join(dir, "fd", l.Name())); err == nil && target == path {
+				return
+			}
+		}
+		time.Sleep(5 * time.Millisecond)
+	}
+	t.Fatalf("process %d never opened %s", pid, path)
 }

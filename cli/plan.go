@@ -103,20 +103,15 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if w := cfg.Model.Window; w.Kind == model.WindowRecords {
 		n = min(n, w.Records)
 	}
-	smp := plan.NewSample(n)
+	// Measuring needs the raw lines; with --redact none are kept (smp is
+	// nil), so the plan is then chosen from the figures alone.
+	smp := in.KeepRaw(n)
 	for _, p := range paths {
 		in.AddSource(p)
 	}
 	src := parse.NewFileSource(paths, cfg.MaxLine)
 	src.Stdin = std.In
-	// Measuring needs the raw lines; with --redact none may be kept, so
-	// the plan is then chosen from the figures alone.
-	redacting := cfg.Redact || len(cfg.RedactFields) > 0
-	var from parse.Source = &teeSource{Source: src, sample: smp}
-	if redacting {
-		from = src
-	}
-	readErr := in.ReadSource(ctx, from)
+	readErr := in.ReadSource(ctx, src)
 	src.Close()
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
@@ -125,17 +120,22 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return err
 	}
-	smp.Keep(snap.Records)
+	if smp != nil {
+		smp.Keep(snap.Records)
+	}
 	pins, err := c.pins(snap)
 	if err != nil {
 		return err
 	}
 	if snap.Records == 0 {
-		return inputErrorOr(readErr, snap, noRecords(snap))
+		return outcome(std, in, readErr, snap)
 	}
-	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()}
+	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != ""}
+	if smp != nil {
+		opts.Batch = smp.Len()
+	}
 	var p *plan.Plan
-	if redacting {
+	if smp == nil {
 		p = plan.Choose(snap, opts)
 		p.Notes = append(p.Notes, "not measured and not verified: --redact keeps no raw lines, so the saving is the model's estimate")
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
@@ -213,27 +213,4 @@ func oneOf(v string, set []string) bool {
 		}
 	}
 	return false
-}
-
-// inputErrorOr is inputError, or alt when the input read cleanly.
-func inputErrorOr(readErr error, snap *model.Snapshot, alt error) error {
-	if err := inputError(readErr, snap); err != nil {
-		return err
-	}
-	return alt
-}
-
-// teeSource hands every line it passes on to the plan's sample too: the
-// model keeps no text for identifiers, the sample keeps the raw lines.
-type teeSource struct {
-	parse.Source
-	sample *plan.Sample
-}
-
-func (t *teeSource) Next(ctx context.Context) (parse.Line, error) {
-	l, err := t.Source.Next(ctx)
-	if err == nil && !l.TooLong {
-		t.sample.Add(l.Text)
-	}
-	return l, err
 }
