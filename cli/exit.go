@@ -46,6 +46,10 @@ func signalName(s os.Signal) string {
 		return "SIGINT"
 	case syscall.SIGTERM:
 		return "SIGTERM"
+	case syscall.SIGHUP:
+		return "SIGHUP"
+	case syscall.SIGQUIT:
+		return "SIGQUIT"
 	}
 	return s.String()
 }

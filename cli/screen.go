@@ -47,7 +47,7 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	if w := cfg.Model.Window; !containsWindow(windows, w) {
 		windows = append([]ui.Window{w}, windows...)
 	}
-	m := ui.New(live, ui.Options{Renderer: r, Context: ctx, Windows: windows})
+	m := ui.New(live, ui.Options{Renderer: r, Context: ctx, Windows: windows, Suspend: suspendSelf})
 	opts := []tea.ProgramOption{
 		tea.WithContext(ctx), tea.WithOutput(std.Out), tea.WithAltScreen(), tea.WithMouseCellMotion(),
 	}
@@ -56,7 +56,13 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	} else {
 		opts = append(opts, tea.WithInput(std.In))
 	}
-	_, err = tea.NewProgram(m, opts...).Run()
+	p := tea.NewProgram(m, opts...)
+	stopSignals := screenSignals(p)
+	_, err = p.Run()
+	if sig := stopSignals(); sig != nil {
+		// The terminal is restored; say why the screen closed.
+		return &ExitError{Code: sig.Code(), Err: sig}
+	}
 	if errors.Is(err, tea.ErrProgramKilled) || errors.Is(err, tea.ErrInterrupted) {
 		return nil
 	}

@@ -258,6 +258,14 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	if msg.Type == tea.KeyCtrlC {
 		return m, tea.Quit
 	}
+	if msg.Type == tea.KeyCtrlZ {
+		// Raw input makes ctrl+z a key: suspend as the shell would, with
+		// the terminal given back first (fg brings the screen back).
+		if m.opt.Suspend != nil {
+			return m, m.opt.Suspend
+		}
+		return m, tea.Suspend
+	}
 	if m.screen == screenFields && m.fields.capturing() {
 		return m.toScreen(msg)
 	}

@@ -13,6 +13,7 @@ import (
 	"context"
 	"time"
 
+	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
 
 	"bitsift/ingest"
@@ -66,6 +67,11 @@ type Options struct {
 	// Clock tells the time for "pinned at" and "measured at" (default
 	// time.Now; tests fix it).
 	Clock func() time.Time
+	// Suspend is what ctrl+z runs (default tea.Suspend): the terminal is
+	// given back and the process stopped until fg. The command line sets
+	// one that goes through its own SIGTSTP handling, so that a ctrl+z and
+	// a kill -TSTP suspend the same way.
+	Suspend tea.Cmd
 }
 
 // DefaultWindows are the windows the window key cycles through.
