@@ -46,9 +46,9 @@ func WriteCSV(w io.Writer, r *Report) error {
 	cw.Write([]string{"name", "kind", "present", "distinct", "entropy_bits", "entropy_mm_bits",
 		"estimate", "bytes_per_record", "best_given", "residual_bits", "uncertainty_coefficient", "synthetic", "timestamp"})
 	for _, f := range r.Fields {
-		cw.Write([]string{f.Name, f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
+		cw.Write([]string{sanitize.CSVCell(f.Name), f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
 			num(f.Entropy), num(f.EntropyMM), strconv.FormatBool(f.Estimate), num(f.BytesPerRecord),
-			f.BestGiven, num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic), strconv.FormatBool(f.Timestamp)})
+			sanitize.CSVCell(f.BestGiven), num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic), strconv.FormatBool(f.Timestamp)})
 	}
 	cw.Flush()
 	return cw.Error()
@@ -239,7 +239,4 @@ func WriteMarkdown(w io.Writer, r *Report) error {
 	return err
 }
 
-func md(s string) string {
-	s = sanitize.String(s)
-	return strings.NewReplacer("|", `\|`, "*", `\*`, "_", `\_`, "`", "\\`", "<", "&lt;").Replace(s)
-}
+func md(s string) string { return sanitize.MarkdownCell(s) }
