@@ -1,8 +1,8 @@
 package cli
 
 import (
-	"encoding/json"
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"regexp"
 	"strings"
