@@ -361,6 +361,9 @@ func (in *Ingester) add(num int64, source string) {
 // commit adds the companions to a parsed record, redacts it, and takes it
 // into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
+	if rec.DupKeys {
+		in.input.DupKeyRecords++
+	}
 	in.comp.Apply(rec)
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are

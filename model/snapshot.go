@@ -138,6 +138,9 @@ type Input struct {
 	// Parts counts lines held as parts of a record joined from several
 	// lines (CRI partial lines): Lines == records + Rejected + Parts.
 	Parts int64
+	// DupKeyRecords counts records whose line gave a key twice (the last
+	// value is kept, as jq and most JSON readers do).
+	DupKeyRecords int64
 	// TimeField and TimeFormat are the stream's timestamp field and its
 	// format (see parse.TimeFinder), "" when none was found.
 	TimeField, TimeFormat string

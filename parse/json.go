@@ -21,6 +21,7 @@ func init() { Register("json", func() Format { return &JSON{} }) }
 // allocate per field: it unescapes straight into the Record's buffer.
 type JSON struct {
 	key []byte // the dotted key prefix being built
+	dup dupKeys
 }
 
 // Name implements Format.
@@ -41,12 +42,14 @@ type jsonParser struct {
 	i   int
 	rec *Record
 	key *[]byte
+	dup *dupKeys
 }
 
 // Parse implements Format.
 func (j *JSON) Parse(line []byte, rec *Record) error {
-	p := jsonParser{s: line, rec: rec, key: &j.key}
+	p := jsonParser{s: line, rec: rec, key: &j.key, dup: &j.dup}
 	j.key = j.key[:0]
+	j.dup.reset()
 	p.ws()
 	if p.i >= len(p.s) || p.s[p.i] != '{' {
 		return reject("not a JSON object")
@@ -58,6 +61,7 @@ func (j *JSON) Parse(line []byte, rec *Record) error {
 	if p.i != len(p.s) {
 		return reject("text after the JSON object")
 	}
+	j.dup.apply(rec)
 	return nil
 }
 
@@ -89,6 +93,8 @@ func (p *jsonParser) object(depth int) error {
 		return nil
 	}
 	prefix := len(*p.key)
+	level := p.dup.open()
+	defer p.dup.close(level)
 	for {
 		p.ws()
 		if p.i >= len(p.s) || p.s[p.i] != '"' {
@@ -98,11 +104,13 @@ func (p *jsonParser) object(depth int) error {
 		if prefix > 0 {
 			*p.key = append(*p.key, '.')
 		}
+		seg := len(*p.key)
 		var err error
 		*p.key, err = p.str(*p.key)
 		if err != nil {
 			return err
 		}
+		p.dup.member(level, (*p.key)[seg:], len(p.rec.spans))
 		p.ws()
 		if p.i >= len(p.s) || p.s[p.i] != ':' {
 			return reject("expected ':' after JSON key")

@@ -13,12 +13,16 @@ type span struct{ k0, k1, v0, v1 int32 }
 type Record struct {
 	buf   []byte
 	spans []span
+	// DupKeys: the line gave a key twice at one level; the last value is
+	// kept (see parse/json_dup.go).
+	DupKeys bool
 }
 
 // Reset empties the record, keeping its buffers for reuse.
 func (r *Record) Reset() {
 	r.buf = r.buf[:0]
 	r.spans = r.spans[:0]
+	r.DupKeys = false
 }
 
 // Len is the number of fields in the record.
@@ -75,6 +79,7 @@ func (r *Record) Get(key string) ([]byte, bool) {
 func (r *Record) CopyFrom(o *Record) {
 	r.buf = append(r.buf[:0], o.buf...)
 	r.spans = append(r.spans[:0], o.spans...)
+	r.DupKeys = o.DupKeys
 }
 
 // AddKV appends a field whose key is a string, copying both; it spares

@@ -98,6 +98,9 @@ func WriteText(w io.Writer, r *Report) error {
 	if r.Parts > 0 {
 		fmt.Fprintf(b, ", %d joined to the line after them", r.Parts)
 	}
+	if r.DupKeyRecords > 0 {
+		fmt.Fprintf(b, "\n%d records gave a key twice: the last value is kept, as jq and most JSON readers do", r.DupKeyRecords)
+	}
 	b.WriteString("\n\n")
 	hasTime := false
 	fmt.Fprintf(b, "%-20s %-11s %6s %8s  %-16s %6s %6s\n",

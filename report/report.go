@@ -23,7 +23,10 @@ type Report struct {
 	Lines    int64  `json:"lines"`
 	// Parts counts lines joined into a record with the lines after them
 	// (CRI partial lines): lines = records read + rejected + parts.
-	Parts            int64             `json:"parts,omitempty"`
+	Parts int64 `json:"parts,omitempty"`
+	// DupKeyRecords counts records whose line gave a key twice at one
+	// level: the last value is kept, as jq, Go and Python read JSON.
+	DupKeyRecords    int64             `json:"duplicate_key_records"`
 	RejectedExamples []model.Rejection `json:"rejected_examples"`
 	Window           Window            `json:"window"`
 	Input            Input             `json:"input"`
@@ -135,6 +138,7 @@ func Build(s *model.Snapshot) *Report {
 		Rejected:         s.Input.Rejected,
 		Lines:            s.Input.Lines,
 		Parts:            s.Input.Parts,
+		DupKeyRecords:    s.Input.DupKeyRecords,
 		RejectedExamples: s.Input.RejectedExamples,
 		Input: Input{
 			Sources:    s.Input.Sources,
