@@ -28,7 +28,9 @@ type Source struct {
 	buf   []byte
 	n     int64 // lines given
 	start time.Time
-	timer *time.Timer
+	// Clock paces the source (default the wall clock); tests set a fake
+	// one before the first Next.
+	Clock parse.Clock
 
 	mu     sync.Mutex
 	status parse.SourceStatus
@@ -37,7 +39,7 @@ type Source struct {
 // NewSource returns the demo stream of the given seed and length (0:
 // endless) at rate lines per second.
 func NewSource(seed uint64, lines int64, rate float64) *Source {
-	s := &Source{g: New(seed, lines), rate: rate, lines: lines}
+	s := &Source{g: New(seed, lines), rate: rate, lines: lines, Clock: parse.SystemClock{}}
 	state := parse.StateReading
 	if rate > 0 {
 		s.g.Now = time.Now
@@ -80,22 +82,17 @@ func (s *Source) Next(ctx context.Context) (parse.Line, error) {
 // wait returns when line s.n+1 is due.
 func (s *Source) wait(ctx context.Context) error {
 	if s.start.IsZero() {
-		s.start = time.Now()
+		s.start = s.Clock.Now()
 	}
 	for {
-		due := int64(time.Since(s.start).Seconds() * s.rate)
+		due := int64(s.Clock.Now().Sub(s.start).Seconds() * s.rate)
 		if s.n < due {
 			return nil
-		}
-		if s.timer == nil {
-			s.timer = time.NewTimer(pace)
-		} else {
-			s.timer.Reset(pace)
 		}
 		select {
 		case <-ctx.Done():
 			return ctx.Err()
-		case <-s.timer.C:
+		case <-s.Clock.After(pace):
 		}
 	}
 }
@@ -110,9 +107,4 @@ func (s *Source) Status() parse.SourceStatus {
 }
 
 // Close implements parse.Source.
-func (s *Source) Close() error {
-	if s.timer != nil {
-		s.timer.Stop()
-	}
-	return nil
-}
+func (s *Source) Close() error { return nil }

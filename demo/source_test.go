@@ -34,27 +34,47 @@ func TestSourceMatchesGenerator(t *testing.T) {
 	}
 }
 
+// fakeClock moves only when the source waits: After(d) moves it on by d
+// at once.
+type fakeClock struct{ now time.Time }
+
+func (c *fakeClock) Now() time.Time { return c.now }
+
+func (c *fakeClock) After(d time.Duration) <-chan time.Time {
+	c.now = c.now.Add(d)
+	ch := make(chan time.Time, 1)
+	ch <- c.now
+	return ch
+}
+
+// TestSourcePaced: at 1,000 lines/s no line comes before it is due by the
+// injected clock, and the 300th comes once 0.3 s have passed on it, give or
+// take one wake-up (10 ms). The wall clock plays no part, so a busy
+// machine cannot make it fail.
 func TestSourcePaced(t *testing.T) {
-	// 1,000 lines/s for 0.3 s: about 300 lines, released in batches.
 	src := NewSource(1, 0, 1000)
-	ctx, cancel := context.WithTimeout(context.Background(), 300*time.Millisecond)
-	defer cancel()
-	n := 0
-	for {
-		if _, err := src.Next(ctx); err != nil {
-			if !errors.Is(err, context.DeadlineExceeded) {
-				t.Fatal(err)
-			}
-			break
+	clock := &fakeClock{now: time.Date(2025, 3, 2, 6, 0, 0, 0, time.UTC)}
+	src.Clock = clock
+	start := clock.now
+	for n := 1; n <= 300; n++ {
+		if _, err := src.Next(context.Background()); err != nil {
+			t.Fatal(err)
 		}
-		n++
+		due := int(clock.now.Sub(start).Seconds()*1000 + 1e-6)
+		if n > due {
+			t.Fatalf("line %d came at %v on the clock, when only %d were due", n, clock.now.Sub(start), due)
+		}
 	}
-	// Only the upper bound: a busy machine may give fewer lines, never
-	// more than have fallen due.
-	if n > 301 {
-		t.Errorf("%d lines in 0.3 s at 1,000 lines/s, want at most 300", n)
+	if el := clock.now.Sub(start); el < 300*time.Millisecond-pace || el > 300*time.Millisecond+pace {
+		t.Errorf("300 lines at 1,000 lines/s took %v on the clock, want 0.3 s", el)
 	}
 	if st := src.Status(); st.State != "live" {
 		t.Errorf("state of a paced demo = %q, want live", st.State)
+	}
+	// A cancelled context ends the wait.
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := src.Next(ctx); !errors.Is(err, context.Canceled) {
+		t.Errorf("Next after cancel: %v", err)
 	}
 }
