@@ -84,6 +84,7 @@ type Ingester struct {
 	lastNum  int64
 
 	input model.Input
+	held  heldRecords // a parsed batch's records, for the model (batch.go)
 }
 
 type pendingLine struct {
@@ -323,15 +324,19 @@ func (in *Ingester) add(num int64) {
 	in.commit(&in.rec, num, in.recTime())
 }
 
-// commit adds the companions to a parsed record, redacts it, and takes it
-// into the model.
+// commit prepares a parsed record and takes it into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64) {
+	in.prepare(rec)
+	in.model.Add(rec, num, t)
+}
+
+// prepare adds the companions to a parsed record and redacts it.
+func (in *Ingester) prepare(rec *parse.Record) {
 	in.comp.apply(rec)
 	if in.redact != nil {
 		// After the companions, so that templates are hashed too.
 		in.redact.Apply(rec)
 	}
-	in.model.Add(rec, num, t)
 }
 
 // endSource closes records left open at the end of a source (CRI partial
