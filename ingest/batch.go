@@ -135,6 +135,7 @@ func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
 		text := b.text[l.start:l.end]
 		in.enter(l.source)
 		in.input.Lines++
+		in.observeLine(l.num, l.source)
 		in.keepRaw(text, l.num, l.source, l.tooLong)
 		if !in.account(l.kind, l.reason, l.num, l.source, text) {
 			continue
@@ -147,7 +148,7 @@ func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
 			in.markTime()
 		}
 		rec := &b.recs[i]
-		in.prepare(rec)
+		in.prepare(rec, l.num, t, l.source)
 		in.held.recs = append(in.held.recs, rec)
 		in.held.lines = append(in.held.lines, l.num)
 		in.held.times = append(in.held.times, t)

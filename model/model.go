@@ -19,6 +19,10 @@ type Options struct {
 	// MaxDistinct caps the values interned per identifier field; past it
 	// the field's distinct count and entropy are estimates (default 1<<20).
 	MaxDistinct int
+	// KeepText keeps the text of every value, identifiers' too, instead
+	// of a hash past their first thousands (Counts needs the text to
+	// sketch an identifier with a hash that is the same in every run).
+	KeepText bool
 }
 
 func (o Options) withDefaults() Options {
@@ -339,7 +343,7 @@ func (m *Model) reclassify() {
 		} else {
 			f.identRounds = 0
 		}
-		if f.ident && f.byHash == nil && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+		if f.ident && f.byHash == nil && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
 			f.hashValues()
 		}
 	}
