@@ -32,6 +32,9 @@
 // The window and its tables:
 //   - model.go: Model, Add (intern, store, count pairs), eviction, which
 //     fields are tracked in pairs (the identifier rule), Rebuild.
+//   - batch.go, cellbatch.go: AddBatch, the same as Add on each record,
+//     done in passes (fields and pairs spread over the cores, Σ c·log c
+//     computed when a snapshot asks).
 //   - field.go, valuetable.go, values.go: a field's value table (text, or
 //     64-bit hashes for an identifier), its counts, display text.
 //   - cellmap.go: a pair's joint table (a dense matrix, or a hash map).
@@ -47,7 +50,7 @@
 //   - emi.go, reliable.go: expected mutual information, RFI, derived
 //     fields and best predictors.
 //   - deep.go, determinants.go, surprise.go: the Deep analyses over the
-//     newest records.
+//     newest records (run side by side, reading columns).
 //   - baseline.go, profile.go, shift.go, broken.go, analysis.go: baselines,
 //     the window's Profile, shifts and broken rules against it.
 package model
