@@ -146,8 +146,6 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	maxD := m.opt.MaxDistinct
 	spread(len(b.ents)+e, w, func(f int) {
 		fl := m.fields[f]
-		fl.lazy = true
-		defer func() { fl.lazy = false }()
 		col := ev[f*e : (f+1)*e]
 		ents := b.byF[b.starts[f]:b.starts[f+1]]
 		gone := 0

@@ -57,7 +57,7 @@ func (m *cellMap) sum() int64 {
 		if uint32(c) < chunkSize {
 			s += tab[c]
 		} else {
-			s += clogcSlow(int64(c)) // as the table would, without growing it
+			s += clogc(int64(c))
 		}
 	}
 	if m.dense != nil {

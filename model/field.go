@@ -59,30 +59,6 @@ type field struct {
 	// identRounds counts the reclassifications it has stayed one.
 	ident       bool
 	identRounds int
-
-	// lazy: counts change without s (AddBatch's passes), which then
-	// marks s stale; sum brings it back from the counts.
-	lazy, stale bool
-}
-
-// sum is s = Σ clogc(counts[id]), recomputed from the counts if stale: the
-// same integers the incremental updates add up, so the same total. Counts
-// past the first table chunk are computed, not looked up, so that a batch
-// run never grows the table.
-func (f *field) sum() int64 {
-	if !f.stale {
-		return f.s
-	}
-	var s int64
-	for _, c := range f.counts {
-		if uint32(c) < chunkSize {
-			s += clogc0[c]
-		} else {
-			s += clogcSlow(int64(c))
-		}
-	}
-	f.s, f.stale = s, false
-	return s
 }
 
 func newField(name string, index int) *field {
@@ -124,11 +100,7 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	if f.lazy {
-		f.stale = true
-	} else {
-		f.s += clogc(int64(c)+1) - clogc(int64(c))
-	}
+	f.s += clogc(int64(c)+1) - clogc(int64(c))
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(len(f.text[id]))
@@ -148,11 +120,7 @@ func (f *field) remove(id uint32) {
 		return
 	}
 	c := f.counts[id]
-	if f.lazy {
-		f.stale = true
-	} else {
-		f.s += clogc(int64(c)-1) - clogc(int64(c))
-	}
+	f.s += clogc(int64(c)-1) - clogc(int64(c))
 	f.counts[id] = c - 1
 	f.present--
 	if f.byHash != nil {
@@ -204,11 +172,7 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	if f.lazy {
-		f.stale = true
-	} else {
-		f.s += clogc(int64(c)+1) - clogc(int64(c))
-	}
+	f.s += clogc(int64(c)+1) - clogc(int64(c))
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(f.lens[id])
@@ -246,7 +210,7 @@ func (f *field) hashValues() {
 // including absent) and whether they are estimates.
 func (f *field) entropy(n int64) (h float64, cells int64, estimate bool) {
 	a := n - f.present
-	s := f.sum() + clogc(a) // overflow values count once each: clogc(1) == 0
+	s := f.s + clogc(a) // overflow values count once each: clogc(1) == 0
 	cells = f.distinct + f.overflowed
 	if a > 0 {
 		cells++
