@@ -16,8 +16,8 @@
 // point (2^-30 bits per unit), so adding and removing the same records
 // returns exactly the same integer, with no floating-point drift however long
 // the stream: the incremental figures equal a recount bit for bit. A batch
-// (AddBatch) changes the counts only and S is summed again from them at the
-// next snapshot: the same integers, so the same S. The
+// (AddBatch) changes a pair table's counts only, and its S is summed again
+// from them at the next snapshot: the same integers, so the same S. The
 // rounding of each term is below 5e-10 bits, so H is within 5e-10·K/N of the
 // exact value for a table of K cells. Exactness holds while N·log2(N) stays
 // below 2^33 (windows of up to about 250 million records).
