@@ -96,6 +96,7 @@ type Ingester struct {
 	lastNum  int64
 
 	input model.Input
+	held  heldRecords // a parsed batch's records, for the model (batch.go)
 }
 
 type pendingLine struct {
@@ -358,16 +359,22 @@ func (in *Ingester) add(num int64, source string) {
 	in.commit(&in.rec, num, in.recTime(), source)
 }
 
-// commit adds the companions to a parsed record, redacts it, and takes it
-// into the model.
+// commit prepares a parsed record and takes it into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
+	in.prepare(rec, num, t, source)
+	in.model.Add(rec, num, t)
+}
+
+// prepare adds the companions to a parsed record, redacts it, and shows it
+// to the Observer (which does not read the model, so a batch's records
+// may be shown before the model takes them).
+func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
 	in.comp.Apply(rec)
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
 		// not redacted (chooseCompanions).
 		in.redact.Apply(rec)
 	}
-	in.model.Add(rec, num, t)
 	if in.cfg.Observer != nil {
 		in.cfg.Observer.Record(rec, num, source, t)
 	}
