@@ -163,7 +163,7 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
 	}
-	if err := readNotes(std, in); err != nil {
+	if err := readNotes(std, in, readErr); err != nil {
 		return err
 	}
 	return inputError(readErr, snap)
