@@ -57,3 +57,16 @@ func TestUnreadableRunHelps(t *testing.T) {
 		t.Errorf("exit %d, stderr:\n%s", code, errs)
 	}
 }
+
+// Under --redact annotate keeps no raw copy of standard input, and writes
+// no raw value of a redacted field.
+func TestAnnotateRedact(t *testing.T) {
+	if code, _, _ := run(t, "a=1 b=2\n", "annotate", "--redact", "-"); code != ExitUsage {
+		t.Errorf("annotate --redact - exit %d, want %d", code, ExitUsage)
+	}
+	p := write(t, "quay.log", []byte(strings.Repeat("ship=Tern berth=12 msg=\"moored at berth 12\"\n", 20)))
+	code, out, errs := run(t, "", "annotate", "--redact", p)
+	if code != ExitOK || strings.Contains(out, "Tern") || strings.Contains(out, "moored") {
+		t.Errorf("exit %d (%s), output:\n%s", code, errs, out)
+	}
+}
