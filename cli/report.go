@@ -64,7 +64,7 @@ type reportCmd struct {
 	streamFlags
 	live     followFlags
 	output   string
-	baseline string
+	baseline baselineFlag
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -93,7 +93,7 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	c.register(cmd, "all")
 	c.live.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
-	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
+	c.baseline.register(cmd)
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -113,13 +113,11 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
-	if c.baseline != "" {
-		p, err := report.ReadBaseline(c.baseline)
-		if err != nil {
-			return &ExitError{Code: ExitUsage, Err: err}
-		}
-		in.Model().SetBaseline(p)
+	base, err := c.baseline.load()
+	if err != nil {
+		return err
 	}
+	in.Model().SetBaseline(base)
 	var readErr error
 	if c.live.follow {
 		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
@@ -132,6 +130,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	var usage *ExitError
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
+	}
+	if err := checkBaseline(in, base); err != nil {
+		return err
 	}
 	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
