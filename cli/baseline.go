@@ -39,3 +39,11 @@ func checkBaseline(in *ingest.Ingester, p *model.Profile) error {
 	}
 	return nil
 }
+
+// buildReport builds the report of snap with the timeline of what changed
+// along the window (model.Timeline), which needs no baseline.
+func buildReport(in *ingest.Ingester, snap *model.Snapshot) *report.Report {
+	r := report.Build(snap)
+	r.AddTimeline(in.Model().Timeline(snap, snap.Input.Sources), model.TimelineMethod)
+	return r
+}

@@ -127,5 +127,5 @@ func runDefault(ctx context.Context, std IO, o *outputFlags) error {
 	if base != nil {
 		opt = model.SnapshotOptions{Deep: true, Profile: true}
 	}
-	return writeError(report.Write(std.Out, report.Build(in.Snapshot(opt)), o.output))
+	return writeError(report.Write(std.Out, buildReport(in, in.Snapshot(opt)), o.output))
 }

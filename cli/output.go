@@ -71,7 +71,7 @@ func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Sourc
 		return err
 	}
 	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, report.Build(snap), format); err != nil {
+	if err := report.Write(std.Out, buildReport(in, snap), format); err != nil {
 		return writeError(err)
 	}
 	return inputError(readErr, snap)

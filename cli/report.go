@@ -135,7 +135,7 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
+	if err := report.Write(std.Out, buildReport(in, snap), c.output); err != nil {
 		return writeError(err)
 	}
 	return inputError(readErr, snap)

@@ -50,6 +50,10 @@ type Report struct {
 	// determinants and surprising records cover (see
 	// model.DeepMaxRecords); absent when they were not computed.
 	DeepRecords int `json:"deep_records,omitempty"`
+	// Timeline lists what changed along log time (see TimelineEntry);
+	// TimelineMethod says how it was found. Absent when not computed.
+	Timeline       []TimelineEntry `json:"timeline,omitempty"`
+	TimelineMethod string          `json:"timeline_method,omitempty"`
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
 	Profile *model.Profile `json:"profile,omitempty"`
