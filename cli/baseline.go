@@ -45,5 +45,6 @@ func checkBaseline(in *ingest.Ingester, p *model.Profile) error {
 func buildReport(in *ingest.Ingester, snap *model.Snapshot) *report.Report {
 	r := report.Build(snap)
 	r.AddTimeline(in.Model().Timeline(snap, snap.Input.Sources), model.TimelineMethod)
+	r.AddTraces(report.NewTracer(in.Model(), snap.Input.Sources))
 	return r
 }

@@ -17,6 +17,9 @@ import (
 //     median absolute deviation (1.4826·MAD, the normal-consistent robust
 //     estimate) of the whole series, σ floored by the sampling spread the
 //     figure has by chance alone, so a few bad chunks do not move them;
+//     for a rule's share of breaking records, whose healthy level is the
+//     low one and whose bad stretch may cover most of the window, μ₀ is
+//     the lower quartile and σ the binomial spread at μ₀ (cusumAt);
 //   - upward: S_k = max(0, S_{k−1} + z_k − κ) with z_k = (x_k − μ₀)/σ;
 //     when S_k > h the level has risen, and the change began just after
 //     the last chunk where S was 0 (Page's estimate of the change point);
@@ -48,9 +51,14 @@ func cusumSegments(x []float64, floor float64) (segs []segment, mu0, sigma float
 	for i, v := range x {
 		dev[i] = math.Abs(v - mu0)
 	}
-	sigma = math.Max(1.4826*median(dev), floor)
-	if sigma <= 0 {
-		return nil, mu0, sigma
+	return cusumAt(x, mu0, math.Max(1.4826*median(dev), floor)), mu0, math.Max(1.4826*median(dev), floor)
+}
+
+// cusumAt runs the two-phase test on x against the level mu0 and spread
+// sigma.
+func cusumAt(x []float64, mu0, sigma float64) (segs []segment) {
+	if sigma <= 0 || len(x) < 4 {
+		return nil
 	}
 	s, lastZero := 0.0, -1
 	for k := 0; k < len(x); k++ {
@@ -84,7 +92,14 @@ func cusumSegments(x []float64, floor float64) (segs []segment, mu0, sigma float
 		segs = append(segs, segment{start, end})
 		s, lastZero, k = 0, end-1, end-1
 	}
-	return segs, mu0, sigma
+	return segs
+}
+
+// quantile is the q-quantile of x (nearest rank).
+func quantile(x []float64, q float64) float64 {
+	c := append([]float64(nil), x...)
+	sort.Float64s(c)
+	return c[min(len(c)-1, int(q*float64(len(c))))]
 }
 
 func median(x []float64) float64 {

@@ -128,13 +128,8 @@ type timelineScan struct {
 	rules           []*ruleSeries
 	dists           []*distSeries
 	gaps            []fieldGaps
-	fileAt          []fileStart // the row where each input begins
+	tracer          func(age int) Trace
 	fileRank        map[string]int
-}
-
-type fileStart struct {
-	row  int
-	name string
 }
 
 // ruleSeries follows Given → Target through the chunks.
@@ -256,21 +251,8 @@ func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
 
 func (sc *timelineScan) scan(sources []string) {
 	m := sc.m
-	prev := int64(math.MaxInt64)
-	file := -1
+	sc.tracer = m.Tracer(sources)
 	for r := 0; r < sc.n; r++ {
-		meta := m.st.metaAt(r)
-		if meta.line <= prev || file < 0 {
-			file++
-			name := ""
-			if file < len(sources) {
-				name = sources[file]
-			} else if len(sources) > 0 {
-				name = sources[len(sources)-1]
-			}
-			sc.fileAt = append(sc.fileAt, fileStart{r, name})
-		}
-		prev = meta.line
 		row := m.st.row(r)
 		k := r / sc.size
 		for _, rs := range sc.rules {
@@ -307,9 +289,9 @@ func (sc *timelineScan) scan(sources []string) {
 		}
 	}
 	sc.fileRank = map[string]int{}
-	for i, f := range sc.fileAt {
-		if _, ok := sc.fileRank[f.name]; !ok {
-			sc.fileRank[f.name] = i
+	for i, f := range sources {
+		if _, ok := sc.fileRank[f]; !ok {
+			sc.fileRank[f] = i
 		}
 	}
 }
@@ -340,15 +322,7 @@ func (g *fieldGaps) keep(s segment) {
 }
 
 // trace says where row r came from.
-func (sc *timelineScan) trace(r int) Trace {
-	meta := sc.m.st.metaAt(r)
-	i := sort.Search(len(sc.fileAt), func(i int) bool { return sc.fileAt[i].row > r }) - 1
-	name := ""
-	if i >= 0 {
-		name = sc.fileAt[i].name
-	}
-	return Trace{File: name, Line: meta.line, Time: meta.time}
-}
+func (sc *timelineScan) trace(r int) Trace { return sc.tracer(sc.n - 1 - r) }
 
 func (sc *timelineScan) gapEntries(i int) []TimelineEntry {
 	g := &sc.gaps[i]
@@ -376,17 +350,20 @@ func (sc *timelineScan) gapEntries(i int) []TimelineEntry {
 
 func (sc *timelineScan) ruleEntries(rs *ruleSeries) []TimelineEntry {
 	x := make([]float64, sc.chunks)
-	total, broke := 0, 0
+	total := 0
 	for k := range x {
 		if rs.has[k] > 0 {
 			x[k] = float64(rs.broke[k]) / float64(rs.has[k])
 		}
 		total += rs.has[k]
-		broke += rs.broke[k]
 	}
-	p := float64(broke) / float64(max(total, 1))
-	floor := math.Max(math.Sqrt(p*(1-p)/float64(sc.size)), 1/float64(sc.size))
-	segs, mu0, _ := cusumSegments(x, floor)
+	if len(x) < 4 {
+		return nil
+	}
+	mu0 := quantile(x, 0.25)
+	per := float64(total) / float64(sc.chunks) // records with Given per chunk
+	sigma := math.Max(math.Sqrt(mu0*(1-mu0)/per), 1/per)
+	segs := cusumAt(x, mu0, sigma)
 	var out []TimelineEntry
 	for _, sg := range segs {
 		has, n, first, last := 0, 0, -1, -1

@@ -4,6 +4,7 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"time"
@@ -52,7 +53,7 @@ type Report struct {
 	DeepRecords int `json:"deep_records,omitempty"`
 	// Timeline lists what changed along log time (see TimelineEntry);
 	// TimelineMethod says how it was found. Absent when not computed.
-	Timeline       []TimelineEntry `json:"timeline,omitempty"`
+	Timeline       []TimelineEntry `json:"timeline"`
 	TimelineMethod string          `json:"timeline_method,omitempty"`
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
@@ -102,7 +103,10 @@ type Field struct {
 	Estimate       bool    `json:"estimate"`
 	BytesPerRecord float64 `json:"bytes_per_record"`
 	BestGiven      string  `json:"best_given"`
-	Residual       float64 `json:"residual_bits"`
+	// Residual is H(F|best_given), null when the field has no best
+	// predictor (not 0: a script looking for zero residuals would find
+	// the identifiers).
+	Residual       *float64 `json:"residual_bits"`
 	Uncertainty    float64 `json:"uncertainty_coefficient"`
 	// Synthetic is set for a companion field that bitsift made from
 	// another (FIELD~log, FIELD~template): it is not in the log.
@@ -174,7 +178,7 @@ func Build(s *model.Snapshot) *Report {
 			Name: f.Name, Kind: string(f.Kind), Present: f.Present, Distinct: f.Distinct,
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
-			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
+			Residual: residualOf(f), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
 			RFI: round(f.RFI), EMIApprox: f.EMIApprox, Shift: shiftOf(f.Shift),
 		}
 		if f.Synthetic != nil {
@@ -215,4 +219,21 @@ func round(x float64) float64 {
 		return 0
 	}
 	return math.Round(x*1e9) / 1e9
+}
+
+// residualOf is the field's H(F|G) for its best predictor, nil without one.
+func residualOf(f *model.FieldStats) *float64 {
+	if f.BestGiven == "" {
+		return nil
+	}
+	x := round(f.Residual)
+	return &x
+}
+
+// left is a residual as text: "" when there is none.
+func left(x *float64, format string) string {
+	if x == nil {
+		return ""
+	}
+	return fmt.Sprintf(format, *x)
 }
