@@ -106,8 +106,8 @@ type Field struct {
 	// Residual is H(F|best_given), null when the field has no best
 	// predictor (not 0: a script looking for zero residuals would find
 	// the identifiers).
-	Residual       *float64 `json:"residual_bits"`
-	Uncertainty    float64 `json:"uncertainty_coefficient"`
+	Residual    *float64 `json:"residual_bits"`
+	Uncertainty float64  `json:"uncertainty_coefficient"`
 	// Synthetic is set for a companion field that bitsift made from
 	// another (FIELD~log, FIELD~template): it is not in the log.
 	Synthetic bool `json:"synthetic"`
