@@ -44,6 +44,7 @@ func checkBaseline(in *ingest.Ingester, p *model.Profile) error {
 // along the window (model.Timeline), which needs no baseline.
 func buildReport(in *ingest.Ingester, snap *model.Snapshot) *report.Report {
 	r := report.Build(snap)
+	r.Narrowed = narrowOf(in)
 	r.AddTimeline(in.Model().Timeline(snap, snap.Input.Sources), model.TimelineMethod)
 	r.AddTraces(report.NewTracer(in.Model(), snap.Input.Sources))
 	return r

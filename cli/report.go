@@ -24,6 +24,7 @@ type streamFlags struct {
 	redactFields []string
 	analyseTime  bool
 	redactKey    string
+	narrow       narrowFlags
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -35,6 +36,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
+	f.narrow.register(cmd)
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
@@ -46,8 +48,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	if err != nil {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
+	filter, err := f.narrow.filter()
+	if err != nil {
+		return ingest.Config{}, err
+	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Filter: filter}
 	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
 		return ingest.Config{}, err
 	}
@@ -74,6 +80,7 @@ type reportCmd struct {
 	output   string
 	baseline baselineFlag
 	prof     profileFlags
+	by       string
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -110,6 +117,7 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	c.baseline.register(cmd)
+	cmd.Flags().StringVar(&c.by, "by", "", "also report on each of the most frequent values of this field on its own (a section per value; reads the files once more per value)")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -159,7 +167,13 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 			return err
 		}
 	}
-	if err := report.Write(std.Out, buildReport(in, snap), c.output); err != nil {
+	rep := buildReport(in, snap)
+	if c.by != "" {
+		if err := c.groups(ctx, rep, snap, cfg, base, paths); err != nil {
+			return err
+		}
+	}
+	if err := report.Write(std.Out, rep, c.output); err != nil {
 		return writeError(err)
 	}
 	return inputError(readErr, snap)

@@ -58,6 +58,10 @@ type Config struct {
 	// RedactKey, when set, is the redaction key (see NewRedactorWithKey)
 	// instead of one drawn at random for the run.
 	RedactKey []byte
+	// Filter, when active, leaves out the records it does not keep
+	// (counted in Input.Filtered), after the companions are added and
+	// before redaction (see filter.go).
+	Filter *Filter
 }
 
 // Ingester turns lines into model records.
@@ -330,6 +334,10 @@ func (in *Ingester) add(num int64) {
 // into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64) {
 	in.comp.apply(rec)
+	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
+		in.input.Filtered++
+		return
+	}
 	if in.redact != nil {
 		// After the companions, so that templates are hashed too.
 		in.redact.Apply(rec)

@@ -97,7 +97,10 @@ func WriteText(w io.Writer, r *Report) error {
 	if r.Input.Format != "" {
 		fmt.Fprintf(b, ", format %s (%.0f%% sure)", r.Input.Format, 100*r.Input.Confidence)
 	}
-	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected", r.Lines, r.Lines-r.Rejected-r.Parts, r.Rejected)
+	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected", r.Lines, r.Lines-r.Rejected-r.Parts-r.Filtered, r.Rejected)
+	if r.Filtered > 0 || r.Narrowed != nil {
+		fmt.Fprintf(b, ", %d left out by %s", r.Filtered, r.Narrowed.String())
+	}
 	if r.Parts > 0 {
 		fmt.Fprintf(b, ", %d joined to the line after them", r.Parts)
 	}
@@ -164,8 +167,10 @@ func WriteText(w io.Writer, r *Report) error {
 	for _, f := range r.Input.Faults {
 		fmt.Fprintf(b, "\nfault: %s\n", sanitize.String(f))
 	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	return writeGroups(w, r, false)
 }
 
 // writeSynthetic lists the fields bitsift made, so that no one takes them
@@ -239,8 +244,10 @@ func WriteMarkdown(w io.Writer, r *Report) error {
 		b.WriteString("\n† derived by bitsift from another field, not in the log.\n")
 	}
 	writeChangesMarkdown(b, r)
-	_, err := io.WriteString(w, b.String())
-	return err
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	return writeGroups(w, r, true)
 }
 
 func md(s string) string {

@@ -25,6 +25,11 @@ type Report struct {
 	// Parts counts lines joined into a record with the lines after them
 	// (CRI partial lines): lines = records read + rejected + parts.
 	Parts            int64             `json:"parts,omitempty"`
+	// Filtered counts records left out by --where, --since and --until
+	// (lines = records read + rejected + parts + filtered); Narrowed says
+	// how the stream was narrowed.
+	Filtered int64   `json:"filtered,omitempty"`
+	Narrowed *Narrow `json:"narrowed,omitempty"`
 	RejectedExamples []model.Rejection `json:"rejected_examples"`
 	Window           Window            `json:"window"`
 	Input            Input             `json:"input"`
@@ -55,6 +60,11 @@ type Report struct {
 	// TimelineMethod says how it was found. Absent when not computed.
 	Timeline       []TimelineEntry `json:"timeline"`
 	TimelineMethod string          `json:"timeline_method,omitempty"`
+	// By is the field of --by; Groups the report of each of its most
+	// frequent values, GroupsLeftOut how many values had none.
+	By            string  `json:"by,omitempty"`
+	Groups        []Group `json:"groups,omitempty"`
+	GroupsLeftOut int     `json:"groups_left_out,omitempty"`
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
 	Profile *model.Profile `json:"profile,omitempty"`
@@ -143,6 +153,7 @@ func Build(s *model.Snapshot) *Report {
 		Rejected:         s.Input.Rejected,
 		Lines:            s.Input.Lines,
 		Parts:            s.Input.Parts,
+		Filtered:         s.Input.Filtered,
 		RejectedExamples: s.Input.RejectedExamples,
 		Input: Input{
 			Sources:    s.Input.Sources,
