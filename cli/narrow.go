@@ -78,4 +78,3 @@ func narrowOf(in *ingest.Ingester) *report.Narrow {
 	}
 	return n
 }
-

@@ -24,12 +24,12 @@ type Report struct {
 	Lines    int64  `json:"lines"`
 	// Parts counts lines joined into a record with the lines after them
 	// (CRI partial lines): lines = records read + rejected + parts.
-	Parts            int64             `json:"parts,omitempty"`
+	Parts int64 `json:"parts,omitempty"`
 	// Filtered counts records left out by --where, --since and --until
 	// (lines = records read + rejected + parts + filtered); Narrowed says
 	// how the stream was narrowed.
-	Filtered int64   `json:"filtered,omitempty"`
-	Narrowed *Narrow `json:"narrowed,omitempty"`
+	Filtered         int64             `json:"filtered,omitempty"`
+	Narrowed         *Narrow           `json:"narrowed,omitempty"`
 	RejectedExamples []model.Rejection `json:"rejected_examples"`
 	Window           Window            `json:"window"`
 	Input            Input             `json:"input"`
