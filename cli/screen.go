@@ -41,7 +41,7 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	if w := cfg.Model.Window; !containsWindow(windows, w) {
 		windows = append([]ui.Window{w}, windows...)
 	}
-	m := ui.New(live, ui.Options{Renderer: r, Context: ctx, Windows: windows})
+	m := ui.New(live, ui.Options{Renderer: r, Context: ctx, Windows: windows, Baseline: so.base})
 	opts := []tea.ProgramOption{
 		tea.WithContext(ctx), tea.WithOutput(std.Out), tea.WithAltScreen(),
 	}

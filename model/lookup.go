@@ -9,6 +9,9 @@ import (
 // (Absent: the field is absent), or, with Match, matches the regular
 // expression; Not negates it.
 type Cond struct {
+	// Line, when above 0 and Field is "", matches the records read from
+	// that line number (in any input).
+	Line   int64
 	Field  string
 	Value  string
 	Absent bool
@@ -39,7 +42,12 @@ func (m *Model) Find(conds []Cond, limit int) ([]Found, int) {
 		rest bool   // what an id past want gives
 	}
 	tests := make([]test, 0, len(conds))
+	var lineIs []int64
 	for _, c := range conds {
+		if c.Field == "" && c.Line > 0 {
+			lineIs = append(lineIs, c.Line)
+			continue
+		}
 		t := test{}
 		idx, ok := m.byName[c.Field]
 		if ok {
@@ -69,7 +77,13 @@ func (m *Model) Find(conds []Cond, limit int) ([]Found, int) {
 	total := 0
 	for r := n - 1; r >= 0; r-- {
 		ok := true
+		for _, l := range lineIs {
+			ok = ok && m.st.metaAt(r).line == l
+		}
 		for _, t := range tests {
+			if !ok {
+				break
+			}
 			id := uint32(absent)
 			if t.col != nil {
 				id = t.col[r]
@@ -147,4 +161,14 @@ func (m *Model) Tracer(sources []string) func(age int) Trace {
 		}
 		return t
 	}
+}
+
+// LineAt is the line number of the window record of a given age (see
+// Found), −1 past the window.
+func (m *Model) LineAt(age int) int64 {
+	r := m.st.n - 1 - age
+	if r < 0 || age < 0 {
+		return -1
+	}
+	return m.st.metaAt(r).line
 }

@@ -22,6 +22,8 @@ type env struct {
 	now  func() time.Time
 	// pinnedAt is when the user last pinned a baseline (zero: never).
 	pinnedAt time.Time
+	// baselineChecked: --baseline has been checked against the stream.
+	baselineChecked bool
 }
 
 // openMsg asks the root to show one field up close, given another field
