@@ -25,6 +25,7 @@ type streamFlags struct {
 	analyseTime  bool
 	redactKey    string
 	narrow       narrowFlags
+	templates    []string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -38,6 +39,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
 	f.narrow.register(cmd)
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
+	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -53,7 +55,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 		return ingest.Config{}, err
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Filter: filter}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates, Filter: filter}
 	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
 		return ingest.Config{}, err
 	}
@@ -175,6 +177,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	if err := report.Write(std.Out, rep, c.output); err != nil {
 		return writeError(err)
+	}
+	if err := readNotes(std, in); err != nil {
+		return err
 	}
 	return inputError(readErr, snap)
 }
