@@ -173,7 +173,7 @@ func writeChangesCSV(w io.Writer, r *Report) error {
 
 func changeCell(s string) string {
 	s = sanitize.String(s)
-	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
+	if len(s) > 1 && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
 		if _, err := strconv.ParseFloat(s, 64); err != nil {
 			return "'" + s
 		}

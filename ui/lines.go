@@ -97,6 +97,9 @@ func (v linesView) View() string {
 		sub = "cannot look: " + sanitize.String(v.err.Error())
 	default:
 		sub = count(int64(v.total)) + " records in the window · newest first"
+		if v.total == 1 {
+			sub = "1 record in the window"
+		}
 		if v.total > len(v.lines) {
 			sub += " · showing the newest " + count(int64(len(v.lines)))
 		}

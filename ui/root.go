@@ -95,7 +95,8 @@ type measuredMsg struct {
 // New returns the screen over feed.
 func New(feed Feed, opt Options) Model {
 	opt = opt.withDefaults()
-	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery), now: opt.Clock}
+	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery), now: opt.Clock,
+		timeline: &model.TimelineBook{}}
 	h := help.New()
 	h.Styles.FullKey = e.st.HelpKey
 	h.Styles.FullDesc = e.st.HelpDesc
@@ -262,6 +263,7 @@ func (m Model) apply(f *ingest.Frame) Model {
 		at = time.Unix(0, f.Snap.Newest)
 	}
 	m.e.hist.add(f.Snap, at)
+	m.e.timeline.Note(f.Snap, model.Trace{File: f.Source.Name, Line: f.Source.Lines, Time: f.Snap.Newest})
 	m = m.checkBaseline(f)
 	if m.pendingWindow != nil && f.Snap.Window == *m.pendingWindow {
 		m.pendingWindow = nil

@@ -87,6 +87,7 @@ func (m Model) writeScreen() string {
 	var rep *report.Report
 	if f := m.e.frame; f != nil {
 		rep = report.Build(f.Snap)
+		rep.AddTimeline(m.e.timeline.Entries(), "seen on the screen, frame by frame")
 	}
 	sf := screenFile{Schema: "bitsift.screen/1", Screen: name, Taken: m.e.now().UTC().Format(time.RFC3339), Width: m.w, Lines: lines, Report: rep}
 	err := writeFile(stem+".json", func(b *strings.Builder) error {
