@@ -2,12 +2,10 @@ package cli
 
 import (
 	"context"
-	"errors"
 	"time"
 
 	"github.com/spf13/cobra"
 
-	"bitsift/ingest"
 	"bitsift/parse"
 )
 
@@ -22,6 +20,7 @@ type watchCmd struct {
 	poll        bool
 	forDur      time.Duration
 	idle        time.Duration
+	out         outputFlags
 }
 
 func newWatchCmd(std IO) *cobra.Command {
@@ -55,6 +54,7 @@ for --idle, then prints the text report.`,
 	fs.BoolVar(&c.poll, "poll", false, "look for changes every 250ms instead of waiting for notifications (network filesystems)")
 	fs.DurationVar(&c.forDur, "for", 0, "stop reading after this long (e.g. 30s, 5m); the figures stay on the screen")
 	fs.DurationVar(&c.idle, "idle", 0, "stop reading once no line has come for this long (e.g. 10s)")
+	c.out.register(cmd)
 	return cmd
 }
 
@@ -73,6 +73,9 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if err != nil {
 		return err
 	}
+	if err := c.out.check(); err != nil {
+		return err
+	}
 	cfg.Stdin = std.In
 	fl, err := parse.NewFollower(path, parse.FollowOptions{
 		FromStart: c.fromStart, Lines: c.lines, RotateGrace: c.rotateGrace, Poll: c.poll,
@@ -85,10 +88,7 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if c.forDur > 0 {
 		src = newUntilSource(fl, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, src)
-	}
-	return showScreen(ctx, std, cfg, src)
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // replayCmd is `bitsift replay`: archives paced on the screen, or read to
@@ -97,6 +97,7 @@ type replayCmd struct {
 	streamFlags
 	speed     string
 	keepOrder bool
+	out       outputFlags
 }
 
 func newReplayCmd(std IO) *cobra.Command {
@@ -123,6 +124,7 @@ at the given speed and prints the text report.`,
 	fs := cmd.Flags()
 	fs.StringVar(&c.speed, "speed", "max", `"max", or N times the records' original pace (e.g. 1, 10, 0.5)`)
 	fs.BoolVar(&c.keepOrder, "keep-order", false, "read the files in the order given, not by their first timestamps")
+	c.out.register(cmd)
 	return cmd
 }
 
@@ -135,6 +137,9 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return err
 	}
+	if err := c.out.check(); err != nil {
+		return err
+	}
 	format := cfg.Format
 	if format == "pattern" {
 		format = "" // the replayer reads times with a named format only
@@ -143,28 +148,7 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return usage("replay: %v", err)
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, r)
-	}
-	return showScreen(ctx, std, cfg, r)
-}
-
-// printReport reads src to its end (or until ctx is done: an interrupted
-// follow still reports what it read) and prints the text report.
-func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
-	defer src.Close()
-	in, err := ingest.New(cfg)
-	if err != nil {
-		return &ExitError{Code: ExitUsage, Err: err}
-	}
-	in.AddSource(src.Status().Name)
-	selfStopping.Store(true)
-	readErr := in.ReadSource(ctx, src)
-	if errors.Is(readErr, context.Canceled) || errors.Is(readErr, context.DeadlineExceeded) {
-		readErr = nil
-	}
-	// An interrupt is how a headless watch ends: the report follows it.
-	return writeReport(context.WithoutCancel(ctx), std, in, "text", readErr)
+	return c.out.show(ctx, std, cfg, r)
 }
 
 // watchWindow is watch's default window: the last 100,000 records, as on

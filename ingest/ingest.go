@@ -64,6 +64,10 @@ type Config struct {
 	Templates []string
 	// Observer, when set, sees what becomes of every line (annotate.go).
 	Observer Observer
+	// Filter, when active, leaves out the records it does not keep
+	// (counted in Input.Filtered), after the companions are added and
+	// before redaction (see filter.go).
+	Filter *Filter
 }
 
 // Ingester turns lines into model records.
@@ -371,6 +375,13 @@ func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
 // may be shown before the model takes them).
 func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
 	in.comp.Apply(rec)
+	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
+		in.input.Filtered++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Rejected(num, source, "left out by --where, --since or --until")
+		}
+		return
+	}
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
 		// not redacted (chooseCompanions).
