@@ -88,6 +88,12 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if c.maxLoss < 0 {
 		return usage("plan: --max-loss must be 0 or more bits per record")
 	}
+	if isProf, err := profileInputs(paths); err != nil || isProf {
+		if err != nil {
+			return err
+		}
+		return c.runProfiles(std, paths)
+	}
 	cfg, err := c.config()
 	if err != nil {
 		return err
@@ -136,6 +142,31 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
 		return &ExitError{Code: ExitUnreadable, Err: err}
 	}
+	return c.write(std, snap, p, readErr)
+}
+
+// runProfiles plans from profiles: chosen from the counts alone, as a
+// profile keeps no raw line to measure on or rebuild.
+func (c *planCmd) runProfiles(std IO, paths []string) error {
+	prof, err := mergedProfile(paths)
+	if err != nil {
+		return err
+	}
+	snap := prof.Snapshot(model.SnapshotOptions{})
+	pins, err := c.pins(snap)
+	if err != nil {
+		return err
+	}
+	if snap.Records == 0 {
+		return &ExitError{Code: ExitUnreadable, Err: errors.New("plan: the profile counts no records")}
+	}
+	p := plan.Choose(snap, plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: prof.TimeField != ""})
+	p.Notes = append(p.Notes, "not measured and not verified: "+errNoLines.Error()+"; the saving is the model's estimate")
+	return c.write(std, snap, p, nil)
+}
+
+// write writes the plan as the flags ask.
+func (c *planCmd) write(std IO, snap *model.Snapshot, p *plan.Plan, readErr error) error {
 	write := func(w io.Writer) error {
 		switch {
 		case c.emit == "jq":
