@@ -329,7 +329,7 @@ func TestSQLMatchesReport(t *testing.T) {
 	}
 	rows := demoRows(t, data)
 	for _, eng := range []struct {
-		name string
+		name  string
 		start func(testing.TB) string
 		load  func(testing.TB, string, []demoRow)
 	}{
