@@ -81,7 +81,9 @@ func nullable(r demoRow, k string) any {
 // loadPostgres loads rows into demo (plain columns; ts timestamptz,
 // status integer, latency_ms numeric(12,1), which keeps "20.0" as written)
 // and demo_attrs (attrColumns, the rest in a jsonb column attrs).
-func loadPostgres(t testing.TB, dsn string, rows []demoRow) {
+func loadPostgres(t testing.TB, dsn string, rows []demoRow) { loadPostgresChunk(t, dsn, rows, true) }
+
+func loadPostgresChunk(t testing.TB, dsn string, rows []demoRow, create bool) {
 	t.Helper()
 	ctx := context.Background()
 	c, err := pgx.Connect(ctx, dsn)
@@ -92,7 +94,7 @@ func loadPostgres(t testing.TB, dsn string, rows []demoRow) {
 	ddl := `CREATE TABLE demo (ts timestamptz, level text, svc text, host text, zone text, region text, method text,
 		route text, status integer, upstream text, latency_ms numeric(12,1), req_id text, account text, refund_reason text);
 		CREATE TABLE demo_attrs (ts timestamptz, level text, host text, route text, status integer, attrs jsonb)`
-	if _, err := c.Exec(ctx, ddl); err != nil {
+	if _, err := c.Exec(ctx, ddl); create && err != nil {
 		t.Fatal(err)
 	}
 	plain := make([][]any, len(rows))
@@ -135,7 +137,9 @@ func loadPostgres(t testing.TB, dsn string, rows []demoRow) {
 // loadClickHouse loads rows into demo (Strings but status UInt16; ts a
 // String, as 18.16's DateTime drops the microseconds) and demo_attrs
 // (attrs as Nested(key, value): 18.16 has no Map).
-func loadClickHouse(t testing.TB, dsn string, rows []demoRow) {
+func loadClickHouse(t testing.TB, dsn string, rows []demoRow) { loadClickHouseChunk(t, dsn, rows, true) }
+
+func loadClickHouseChunk(t testing.TB, dsn string, rows []demoRow, create bool) {
 	t.Helper()
 	ctx := context.Background()
 	o, _ := clickhouse.ParseDSN(dsn)
@@ -151,7 +155,7 @@ func loadClickHouse(t testing.TB, dsn string, rows []demoRow) {
 		`CREATE TABLE demo_attrs (ts String, level String, host String, route String, status UInt16,
 			attrs Nested(key String, value String)) ENGINE = MergeTree ORDER BY ts`,
 	} {
-		if err := c.Exec(ctx, ddl); err != nil {
+		if err := c.Exec(ctx, ddl); create && err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -358,8 +362,8 @@ func TestSQLMatchesReport(t *testing.T) {
 		start func(testing.TB) string
 		load  func(testing.TB, string, []demoRow)
 	}{
-		{"postgres", func(t testing.TB) string { return dbtest.Postgres(t, pgPing) }, loadPostgres},
-		{"clickhouse", func(t testing.TB) string { return dbtest.ClickHouse(t, chPing) }, loadClickHouse},
+		{"postgres", func(t testing.TB) string { return dbtest.Postgres(t, pgPing).DSN }, loadPostgres},
+		{"clickhouse", func(t testing.TB) string { return dbtest.ClickHouse(t, chPing).DSN }, loadClickHouse},
 	} {
 		t.Run(eng.name, func(t *testing.T) {
 			dsn := eng.start(t)

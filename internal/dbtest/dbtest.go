@@ -13,6 +13,7 @@ import (
 	"os/user"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
@@ -118,10 +119,45 @@ func tempDir(t testing.TB, owner string) string {
 	return dir
 }
 
+// Server is a running server.
+type Server struct {
+	DSN string
+	PID int // the server process (PostgreSQL: the postmaster)
+}
+
+// CPU is the processor time the server has used, its own and that of its
+// ended children (PostgreSQL's backends end with their connections), from
+// /proc/PID/stat (utime, stime, cutime, cstime; proc(5)).
+func (s *Server) CPU() (time.Duration, error) {
+	b, err := os.ReadFile(fmt.Sprintf("/proc/%d/stat", s.PID))
+	if err != nil {
+		return 0, err
+	}
+	// Fields after the command name, which is in parentheses and may
+	// hold spaces.
+	rest := string(b[strings.LastIndexByte(string(b), ')')+2:])
+	f := strings.Fields(rest)
+	if len(f) < 15 {
+		return 0, fmt.Errorf("short /proc stat: %q", b)
+	}
+	var ticks int64
+	for _, i := range []int{11, 12, 13, 14} { // utime stime cutime cstime (fields 14–17)
+		n, err := strconv.ParseInt(f[i], 10, 64)
+		if err != nil {
+			return 0, err
+		}
+		ticks += n
+	}
+	return time.Duration(ticks) * time.Second / clockTicks, nil
+}
+
+// clockTicks is sysconf(_SC_CLK_TCK), 100 on Linux.
+const clockTicks = 100
+
 // Postgres starts a PostgreSQL server and returns a DSN for its superuser
 // "postgres" (trust authentication, on 127.0.0.1 only). ping checks a
 // connection (the caller's client library; dbtest imports none).
-func Postgres(t testing.TB, ping func(ctx context.Context, dsn string) error) string {
+func Postgres(t testing.TB, ping func(ctx context.Context, dsn string) error) *Server {
 	t.Helper()
 	initdb := find("/usr/lib/postgresql/*/bin/initdb", "initdb")
 	server := find("/usr/lib/postgresql/*/bin/postgres", "postgres")
@@ -158,12 +194,12 @@ func Postgres(t testing.TB, ping func(ctx context.Context, dsn string) error) st
 	stopOnCleanup(t, cmd, syscall.SIGINT) // SIGINT: fast shutdown
 	dsn := fmt.Sprintf("postgres://postgres@127.0.0.1:%d/postgres?sslmode=disable", port)
 	waitFor(t, "postgres", logPath, func(ctx context.Context) error { return ping(ctx, dsn) })
-	return dsn
+	return &Server{DSN: dsn, PID: cmd.Process.Pid}
 }
 
 // ClickHouse starts a ClickHouse server and returns a DSN for its native
 // port (user default, no password, 127.0.0.1 only).
-func ClickHouse(t testing.TB, ping func(ctx context.Context, dsn string) error) string {
+func ClickHouse(t testing.TB, ping func(ctx context.Context, dsn string) error) *Server {
 	t.Helper()
 	server := find("clickhouse-server", "/usr/sbin/clickhouse-server", "/usr/bin/clickhouse-server")
 	if server == "" {
@@ -217,5 +253,5 @@ func ClickHouse(t testing.TB, ping func(ctx context.Context, dsn string) error) 
 	stopOnCleanup(t, cmd, syscall.SIGTERM)
 	dsn := fmt.Sprintf("clickhouse://default@127.0.0.1:%d/default", tcp)
 	waitFor(t, "clickhouse-server", logPath, func(ctx context.Context) error { return ping(ctx, dsn) })
-	return dsn
+	return &Server{DSN: dsn, PID: cmd.Process.Pid}
 }
