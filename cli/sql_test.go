@@ -137,7 +137,9 @@ func loadPostgresChunk(t testing.TB, dsn string, rows []demoRow, create bool) {
 // loadClickHouse loads rows into demo (Strings but status UInt16; ts a
 // String, as 18.16's DateTime drops the microseconds) and demo_attrs
 // (attrs as Nested(key, value): 18.16 has no Map).
-func loadClickHouse(t testing.TB, dsn string, rows []demoRow) { loadClickHouseChunk(t, dsn, rows, true) }
+func loadClickHouse(t testing.TB, dsn string, rows []demoRow) {
+	loadClickHouseChunk(t, dsn, rows, true)
+}
 
 func loadClickHouseChunk(t testing.TB, dsn string, rows []demoRow, create bool) {
 	t.Helper()
