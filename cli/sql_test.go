@@ -383,6 +383,23 @@ func TestSQLMatchesReport(t *testing.T) {
 			if !strings.Contains(errs, "counting") {
 				t.Errorf("no progress on stderr: %q", errs)
 			}
+			// A time range and a condition: the demo's lines are 0.5 ms
+			// apart from 06:00:00, so [06:00:02, 06:00:04) holds lines
+			// 4,001–8,000; the condition is counted here from the rows.
+			nErr := 0
+			for _, r := range rows[4000:8000] {
+				if r["level"] == "error" {
+					nErr++
+				}
+			}
+			code, got, errs = run(t, "", "sql", "--engine", eng.name, "--dsn", dsn, "--table", "demo", "-o", "json",
+				"--since", "2026-03-14T06:00:02Z", "--until", "2026-03-14T06:00:04Z", "--where", "level = 'error'")
+			if code != 0 {
+				t.Fatalf("range: exit %d: %s", code, errs)
+			}
+			if r := figures(t, got); r.Records != nErr || nErr == 0 {
+				t.Errorf("--since/--until/--where: %d records, want %d", r.Records, nErr)
+			}
 		})
 	}
 }

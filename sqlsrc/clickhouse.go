@@ -185,7 +185,7 @@ func (c *clickHouse) count(ctx context.Context, from string) (int64, error) {
 func (c *clickHouse) approx(ctx context.Context, from string, fs []field) ([]int64, []int64, error) {
 	var sel []string
 	for _, f := range fs {
-		sel = append(sel, "count("+f.expr+")", "uniq("+f.expr+")")
+		sel = append(sel, "count("+f.expr+")", "ifNull(uniq("+f.expr+"), 0)")
 	}
 	vals := make([]uint64, 2*len(fs))
 	dest := make([]any, len(vals))
