@@ -4,7 +4,7 @@ import (
 	"context"
 	"sort"
 
-	"bitsift/ingest"
+	"bitsift/companion"
 	"bitsift/model"
 	"bitsift/parse"
 )
@@ -154,7 +154,14 @@ func (r *run) companions(ctx context.Context, fs []field, ct *model.CountTables)
 	}
 	comps := map[string]made{}
 	var order []string
-	for _, c := range ingest.ValueCompanions(recs) {
+	for _, comp := range companion.Choose(recs, companion.Options{}).List() {
+		// Only companions whose value is a function of the source value
+		// alone: numeric buckets. A template tree learns from messages in
+		// order, which a table does not have.
+		if _, ok := comp.(*companion.Buckets); !ok {
+			continue
+		}
+		c := struct{ Name, Source, Method string }{comp.Name(), comp.Source(), comp.Method()}
 		si, ok := byName[c.Source]
 		if !ok || ct.Fields[si].Summary != nil {
 			continue
@@ -168,7 +175,7 @@ func (r *run) companions(ctx context.Context, fs []field, ct *model.CountTables)
 		at := map[string]uint32{}
 		label := make([]uint32, len(src.Values)+1)
 		for x, v := range src.Values {
-			l := c.Value([]byte(v))
+			l := string(comp.Value([]byte(v)))
 			id, ok := at[l]
 			if !ok {
 				fc.Values = append(fc.Values, l)
