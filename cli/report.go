@@ -62,6 +62,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
+	topic    topicFlags
 	live     followFlags
 	output   string
 	baseline string
@@ -84,14 +85,17 @@ come for --idle, or it is interrupted; then it prints the report.`,
   kubectl logs deploy/api | bitsift report -
   bitsift report --follow --idle 4s -o json /var/log/app.log
   bitsift report -o json monday.log > base.json
-  bitsift report --baseline base.json tuesday.log`,
-		Args: cobra.MinimumNArgs(1),
+  bitsift report --baseline base.json tuesday.log
+  bitsift report --brokers kafka-1:9092 --topic app-logs --start 1h -o json
+  bitsift report --brokers kafka-1:9092 --topic app-logs --follow --for 10m`,
+		Args: c.topic.args("report", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return c.run(cmd.Context(), std, args)
 		},
 	}
 	c.register(cmd, "all")
 	c.live.register(cmd)
+	c.topic.register(cmd, "oldest")
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
@@ -121,7 +125,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		in.Model().SetBaseline(p)
 	}
 	var readErr error
-	if c.live.follow {
+	if c.topic.on() {
+		readErr = c.readTopic(ctx, in, cfg.MaxLine)
+	} else if c.live.follow {
 		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
 	} else {
 		if err := c.live.check(); err != nil {

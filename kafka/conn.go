@@ -32,9 +32,9 @@ type Conn struct {
 	// TLS turns on TLS; CAFile adds a CA bundle (PEM) to the system's,
 	// CertFile and KeyFile present a client certificate, ServerName
 	// overrides the name checked in the brokers' certificates.
-	TLS                         bool
-	CAFile, CertFile, KeyFile   string
-	ServerName                  string
+	TLS                       bool
+	CAFile, CertFile, KeyFile string
+	ServerName                string
 	// SASL is "", "plain", "scram-sha-256" or "scram-sha-512". The user
 	// and password come from CredFile (lines user=... and password=...)
 	// or else from the environment (EnvUser, EnvPassword).

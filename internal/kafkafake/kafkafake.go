@@ -46,7 +46,7 @@ var topicSeq atomic.Int64
 // cluster closed when the test ends.
 func Start(t testing.TB, parts int32) (*Cluster, string) {
 	t.Helper()
-	topic := fmt.Sprintf("bitsift-test-%d-%d", time.Now().UnixNano(), topicSeq.Add(1))
+	topic := fmt.Sprintf("bt%d-%d", time.Now().UnixNano()%1e6, topicSeq.Add(1))
 	if env := os.Getenv("KAFKA_BROKERS"); env != "" {
 		c := &Cluster{Brokers: strings.Split(env, ",")}
 		adm := c.Admin(t)
