@@ -232,6 +232,12 @@ func (s *Source) take(r *kgo.Record) (parse.Line, bool) {
 	s.status.BytesRead += int64(len(r.Value))
 	s.mu.Unlock()
 	s.noteCaughtUp()
+	return recordLine(r, ps.Name, s.opt.MaxLine), true
+}
+
+// recordLine is a record as a line of source name: its value less a
+// trailing line ending, its offset as the line number.
+func recordLine(r *kgo.Record, name string, maxLine int) parse.Line {
 	v := r.Value
 	if n := len(v); n > 0 && v[n-1] == '\n' {
 		v = v[:n-1]
@@ -239,11 +245,11 @@ func (s *Source) take(r *kgo.Record) (parse.Line, bool) {
 			v = v[:n-1]
 		}
 	}
-	l := parse.Line{Text: v, Num: r.Offset, Source: ps.Name}
-	if len(v) > s.opt.MaxLine {
+	l := parse.Line{Text: v, Num: r.Offset, Source: name}
+	if len(v) > maxLine {
 		l.Text, l.TooLong = nil, true
 	}
-	return l, true
+	return l
 }
 
 // noteCaughtUp records, once, the moment every partition has been read to
