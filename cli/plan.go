@@ -101,26 +101,23 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if w := cfg.Model.Window; w.Kind == model.WindowRecords {
 		n = min(n, w.Records)
 	}
-	smp := plan.NewSample(n)
+	// Measuring needs the raw lines; with --redact none are kept (smp is
+	// nil), so the plan is then chosen from the figures alone.
+	smp := in.KeepRaw(n)
 	for _, p := range paths {
 		in.AddSource(p)
 	}
 	src := parse.NewFileSource(paths, cfg.MaxLine)
 	src.Stdin = std.In
-	// Measuring needs the raw lines; with --redact none may be kept, so
-	// the plan is then chosen from the figures alone.
-	redacting := cfg.Redact || len(cfg.RedactFields) > 0
-	var from parse.Source = &teeSource{Source: src, sample: smp}
-	if redacting {
-		from = src
-	}
-	readErr := in.ReadSource(ctx, from)
+	readErr := in.ReadSource(ctx, src)
 	src.Close()
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
 	snap := in.Snapshot(model.SnapshotOptions{})
-	smp.Keep(snap.Records)
+	if smp != nil {
+		smp.Keep(snap.Records)
+	}
 	pins, err := c.pins(snap)
 	if err != nil {
 		return err
@@ -128,9 +125,12 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if snap.Records == 0 {
 		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
 	}
-	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()}
+	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != ""}
+	if smp != nil {
+		opts.Batch = smp.Len()
+	}
 	var p *plan.Plan
-	if redacting {
+	if smp == nil {
 		p = plan.Choose(snap, opts)
 		p.Notes = append(p.Notes, "not measured and not verified: --redact keeps no raw lines, so the saving is the model's estimate")
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
@@ -207,19 +207,4 @@ func inputErrorOr(readErr error, snap *model.Snapshot, alt error) error {
 		return err
 	}
 	return alt
-}
-
-// teeSource hands every line it passes on to the plan's sample too: the
-// model keeps no text for identifiers, the sample keeps the raw lines.
-type teeSource struct {
-	parse.Source
-	sample *plan.Sample
-}
-
-func (t *teeSource) Next(ctx context.Context) (parse.Line, error) {
-	l, err := t.Source.Next(ctx)
-	if err == nil && !l.TooLong {
-		t.sample.Add(l.Text)
-	}
-	return l, err
 }

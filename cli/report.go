@@ -23,6 +23,7 @@ type streamFlags struct {
 	redact       bool
 	redactFields []string
 	analyseTime  bool
+	redactKey    string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -33,6 +34,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
+	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
@@ -46,6 +48,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
 		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
+	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
+		return ingest.Config{}, err
+	}
+	if cfg.RedactKey != nil && len(cfg.RedactFields) == 0 {
+		cfg.Redact = true
+	}
 	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
@@ -66,6 +74,7 @@ type reportCmd struct {
 	live     followFlags
 	output   string
 	baseline string
+	prof     profileFlags
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -90,12 +99,19 @@ come for --idle, or it is interrupted; then it prints the report.`,
   bitsift report --brokers kafka-1:9092 --topic app-logs --follow --for 10m`,
 		Args: c.topic.args("report", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if isProf, err := profileInputs(args); err != nil || isProf {
+				if err != nil {
+					return err
+				}
+				return c.runProfiles(cmd, std, args)
+			}
 			return c.run(cmd.Context(), std, args)
 		},
 	}
 	c.register(cmd, "all")
 	c.live.register(cmd)
 	c.topic.register(cmd, "oldest")
+	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
@@ -113,6 +129,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	if c.prof.out != "" {
+		cfg.Model.KeepText = true // identifiers are sketched from their text
+	}
 	in, err := ingest.New(cfg)
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
@@ -140,10 +159,30 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		return readErr
 	}
 	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
+	if c.prof.out != "" {
+		if err := writeLogProfile(in, cfg, paths, c.prof); err != nil {
+			return err
+		}
+	}
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
 	}
 	return inputError(readErr, snap)
+}
+
+// runProfiles reports on profiles instead of logs: their counts added.
+func (c *reportCmd) runProfiles(cmd *cobra.Command, std IO, args []string) error {
+	if !validOutput(c.output) {
+		return usage("unknown output format %q (use one of %s)", c.output, strings.Join(report.Formats, ", "))
+	}
+	if err := unusedWithProfiles(cmd, "follow", "format", "pattern", "window", "redact", "redact-fields", "redact-key", "baseline", "analyse-time"); err != nil {
+		return err
+	}
+	p, err := mergedProfile(args)
+	if err != nil {
+		return err
+	}
+	return reportProfile(std, p, c.output, c.prof.out)
 }
 
 func validOutput(o string) bool {

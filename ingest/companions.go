@@ -131,6 +131,23 @@ func chooseCompanions(sample []*parse.Record) companions {
 	return cs
 }
 
+// unredacted leaves out the companions of redacted fields: a template
+// keeps a message's words and a bucket a number's range, and nothing may
+// be derived from a value that is meant to be hidden (its hash has no
+// words and no magnitude, so no companion can be made from it either).
+func (cs *companions) unredacted(r *Redactor) {
+	if r == nil {
+		return
+	}
+	kept := cs.list[:0]
+	for _, c := range cs.list {
+		if !r.Redacting(c.source) {
+			kept = append(kept, c)
+		}
+	}
+	cs.list = kept
+}
+
 // apply appends the companion fields to rec.
 func (cs *companions) apply(rec *parse.Record) {
 	for _, c := range cs.list {

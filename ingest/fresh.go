@@ -33,3 +33,7 @@ func (in *Ingester) Fresh() (*Ingester, error) {
 	n.times = in.times
 	return n, nil
 }
+
+// Take takes one line from a source read by its owner (the Kafka worker
+// routes each record to its partition's Ingester).
+func (in *Ingester) Take(l parse.Line) { in.take(l) }

@@ -14,6 +14,7 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"bitsift/ingest/raw"
 	"bitsift/model"
 	"bitsift/parse"
 )
@@ -54,6 +55,9 @@ type Config struct {
 	// AnalyseTime analyses the timestamp field like any other; by default
 	// it is marked and left out of pairs (see model.Model.SetTimestamp).
 	AnalyseTime bool
+	// RedactKey, when set, is the redaction key (see NewRedactorWithKey)
+	// instead of one drawn at random for the run.
+	RedactKey []byte
 }
 
 // Ingester turns lines into model records.
@@ -70,7 +74,10 @@ type Ingester struct {
 	// timeMarked: the timestamp field found has been marked in the model.
 	timeMarked bool
 
-	lastSource string // the input of the last line Take saw
+	lastSource string // the input of the last line taken
+	// raw keeps the newest raw lines when asked (KeepRaw); nil under
+	// --redact.
+	raw *raw.Lines
 
 	// Until started, lines wait in pending: the format is detected from
 	// them and the companions chosen from their records.
@@ -96,7 +103,7 @@ func New(cfg Config) (*Ingester, error) {
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
 	in.times.Now = cfg.Clock
 	if cfg.Redact || len(cfg.RedactFields) > 0 {
-		r, err := NewRedactor(cfg.RedactFields)
+		r, err := newRedactorFor(cfg)
 		if err != nil {
 			return nil, err
 		}
@@ -141,6 +148,7 @@ func (in *Ingester) Model() *model.Model { return in.model }
 // be reused by the caller after Line returns.
 func (in *Ingester) Line(line []byte, num int64, source string) {
 	in.input.Lines++
+	in.keepRaw(line, num, source, false)
 	if !in.started {
 		in.pending = append(in.pending, pendingLine{bytes.Clone(line), num, source})
 		if len(bytes.TrimSpace(line)) > 0 {
@@ -158,10 +166,27 @@ func (in *Ingester) Line(line []byte, num int64, source string) {
 	}
 }
 
-// Reject counts a line that could not even be read as a line (too long).
-func (in *Ingester) Reject(num int64, source, reason string) {
-	in.input.Lines++
-	in.reject(num, source, reason, nil)
+// KeepRaw makes the Ingester keep the newest n raw lines it takes from
+// now on, with their sources and line numbers, and returns them (see
+// raw.Lines; only the owner goroutine may read them, a copy elsewhere).
+// Under --redact it keeps none and returns nil: no raw line may be kept
+// then, and this is the one place that is decided.
+func (in *Ingester) KeepRaw(n int) *raw.Lines {
+	if in.redact == nil && n > 0 {
+		in.raw = raw.New(n)
+	}
+	return in.raw
+}
+
+// Raw is the raw lines kept (KeepRaw), nil when none are.
+func (in *Ingester) Raw() *raw.Lines { return in.raw }
+
+// keepRaw keeps a line's text, if raw lines are kept; lines over
+// --max-line are not.
+func (in *Ingester) keepRaw(text []byte, num int64, source string, tooLong bool) {
+	if in.raw != nil && !tooLong {
+		in.raw.Put(source, num, text)
+	}
 }
 
 func (in *Ingester) reject(num int64, source, reason string, text []byte) {
@@ -185,8 +210,8 @@ func excerpt(b []byte) string {
 	return strings.ToValidUTF8(string(b), string(utf8.RuneError))
 }
 
-// Fault records a read error that ended an input early.
-func (in *Ingester) Fault(source string, err error) {
+// fault records a read error that ended an input early.
+func (in *Ingester) fault(source string, err error) {
 	msg := err.Error()
 	if source != "" {
 		msg = source + ": " + msg
@@ -242,8 +267,14 @@ func (in *Ingester) start() {
 			sample[i] = &recs[i].rec
 		}
 		in.comp = chooseCompanions(sample)
+		in.comp.unredacted(in.redact)
 		in.comp.declare(in.model)
 		in.comp.warm(sample)
+	}
+	if in.redact != nil {
+		for i := range recs {
+			in.redact.Observe(&recs[i].rec)
+		}
 	}
 	for i := range recs {
 		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
@@ -254,20 +285,24 @@ func (in *Ingester) start() {
 // part when it is one; it reports whether in.rec holds a record.
 func (in *Ingester) read(line []byte, num int64, source string) bool {
 	in.lastNum = num
-	if len(bytes.TrimSpace(line)) == 0 {
-		in.reject(num, source, "blank line", nil)
-		return false
-	}
-	in.rec.Reset()
-	err := in.format.Parse(line, &in.rec)
-	switch {
-	case err == nil:
+	kind, reason := parseLine(in.format, line, false, &in.rec)
+	return in.account(kind, reason, num, source, line)
+}
+
+// account counts a line parsed as kind (rejected with reason, or a part)
+// and says whether it is a record.
+func (in *Ingester) account(kind lineKind, reason string, num int64, source string, text []byte) bool {
+	switch kind {
+	case lineRecord:
 		return true
-	case errors.Is(err, parse.ErrPart):
+	case linePart:
 		in.input.Parts++
-		return false
+	default:
+		if reason == "blank line" || reason == reasonTooLong {
+			text = nil
+		}
+		in.reject(num, source, reason, text)
 	}
-	in.reject(num, source, err.Error(), line)
 	return false
 }
 
@@ -302,7 +337,8 @@ func (in *Ingester) add(num int64) {
 func (in *Ingester) commit(rec *parse.Record, num, t int64) {
 	in.comp.apply(rec)
 	if in.redact != nil {
-		// After the companions, so that templates are hashed too.
+		// After the companions, which are made only from fields that are
+		// not redacted (companions.unredacted).
 		in.redact.Apply(rec)
 	}
 	in.model.Add(rec, num, t)
@@ -353,25 +389,34 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 // TimeKey is the timestamp field found in the stream, "" if none.
 func (in *Ingester) TimeKey() string { return in.times.Key() }
 
-// Take takes one line from a Source.
-func (in *Ingester) Take(l parse.Line) {
-	if l.Source != in.lastSource {
-		// A record split over lines does not run on into the next input.
-		if in.started && in.lastSource != "" {
-			in.endSource()
-		}
-		in.lastSource = l.Source
-	}
+// take takes one line from a Source.
+func (in *Ingester) take(l parse.Line) {
+	in.enter(l.Source)
 	if l.TooLong {
-		in.Reject(l.Num, l.Source, "line longer than --max-line")
+		in.input.Lines++
+		in.reject(l.Num, l.Source, reasonTooLong, nil)
 		return
 	}
 	in.Line(l.Text, l.Num, l.Source)
 }
 
-// SetEvents sets the source events the snapshots list (a copy is kept):
+// reasonTooLong is the rejection of a line over --max-line.
+const reasonTooLong = "line longer than --max-line"
+
+// enter notes that lines now come from source: a record split over lines
+// does not run on into the next input.
+func (in *Ingester) enter(source string) {
+	if source != in.lastSource {
+		if in.started && in.lastSource != "" {
+			in.endSource()
+		}
+		in.lastSource = source
+	}
+}
+
+// setEvents sets the source events the snapshots list (a copy is kept):
 // the owner of the source passes src.Status().Events.
-func (in *Ingester) SetEvents(events []parse.SourceEvent) {
+func (in *Ingester) setEvents(events []parse.SourceEvent) {
 	in.input.Events = append(in.input.Events[:0], events...)
 }
 
@@ -395,7 +440,7 @@ func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 		}
 	}
 	in.Flush()
-	in.SetEvents(src.Status().Events)
+	in.setEvents(src.Status().Events)
 	if err != errDone {
 		return err // ctx is done
 	}
@@ -411,14 +456,14 @@ func (in *Ingester) readLines(ctx context.Context, src parse.Source, handOff fun
 		l, err := src.Next(ctx)
 		switch {
 		case err == nil:
-			in.Take(l)
+			in.take(l)
 			continue
 		case errors.Is(err, io.EOF):
 			return first, errDone
 		case ctx.Err() != nil:
 			return first, ctx.Err()
 		}
-		in.Fault("", err)
+		in.fault("", err)
 		if first == nil {
 			first = err
 		}

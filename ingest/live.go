@@ -77,16 +77,14 @@ type Live struct {
 	ended bool
 	err   error
 	rates []rateSample
-	tap   func(line []byte)
 }
 
 // LiveOptions add to what a Live does.
 type LiveOptions struct {
-	// Tap, when set, is given the text of every line read (but lines
-	// over --max-line) on the owner goroutine, before the Ingester takes
-	// it; it must not keep the slice. A screen keeps raw lines with it
-	// (the plan sample), read back with Visit.
-	Tap func(line []byte)
+	// RawLines, when above 0, has the Ingester keep the newest RawLines
+	// raw lines (Ingester.KeepRaw: none under --redact), read back on the
+	// owner goroutine with Visit.
+	RawLines int
 }
 
 type frameReq struct {
@@ -118,9 +116,11 @@ func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt Live
 		visits:    make(chan func()),
 		cancel:    cancel,
 		done:      make(chan struct{}),
-		tap:       opt.Tap,
 	}
 	in.AddSource(src.Status().Name)
+	if opt.RawLines > 0 {
+		in.KeepRaw(opt.RawLines)
+	}
 	go l.read(ctx)
 	go l.run(ctx)
 	return l
@@ -183,22 +183,8 @@ func (l *Live) setBaseline(b BaselineChoice) {
 }
 
 func (l *Live) takeBatch(b *batch) {
-	for i, bl := range b.lines {
-		if i%chunkLines == chunkLines-1 {
-			l.serve()
-		}
-		if bl.err != nil {
-			l.in.Fault("", bl.err)
-			if l.err == nil {
-				l.err = bl.err
-			}
-			continue
-		}
-		text := b.text[bl.start:bl.end]
-		if l.tap != nil && !bl.tooLong {
-			l.tap(text)
-		}
-		l.in.Take(parse.Line{Text: text, Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
+	if err := l.in.takeBatch(b, l.serve); err != nil && l.err == nil {
+		l.err = err
 	}
 }
 
@@ -233,7 +219,7 @@ func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	status := l.src.Status()
 	// The source's events (rotations, truncations, gaps) go into the
 	// input accounting, so that the snapshot lists them as a report does.
-	l.in.SetEvents(status.Events)
+	l.in.setEvents(status.Events)
 	snap := l.in.Snapshot(opt)
 	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
 		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
