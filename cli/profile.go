@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"bitsift/ingest"
+	"bitsift/kafka"
 	"bitsift/model"
 	"bitsift/profile"
 	"bitsift/report"
@@ -141,15 +142,17 @@ func loadProfiles(args []string) ([]*profile.Profile, error) {
 }
 
 // mergedProfile reads and adds the profiles args name.
-func mergedProfile(args []string) (*profile.Profile, error) {
+// A topic's profiles are chained by offset first (merge_topic.go): repeats
+// are left out, said on std.Err, and gaps become faults (missingError).
+func mergedProfile(std IO, args []string) (*profile.Profile, error) {
 	ps, err := loadProfiles(args)
 	if err != nil {
 		return nil, err
 	}
-	if len(ps) == 1 {
-		return ps[0], nil
+	m, notes, err := kafka.Merge(ps)
+	for _, n := range notes {
+		fmt.Fprintln(std.Err, "bitsift: merge:", n)
 	}
-	m, err := profile.Merge(ps)
 	if err != nil {
 		return nil, &ExitError{Code: ExitUsage, Err: err}
 	}
@@ -212,11 +215,14 @@ func (c *mergeCmd) run(std IO, args []string) error {
 	if c.output != "" && !validOutput(c.output) {
 		return usage("merge: unknown output format %q (use one of %s)", c.output, strings.Join(report.Formats, ", "))
 	}
-	p, err := mergedProfile(args)
+	p, err := mergedProfile(std, args)
 	if err != nil {
 		return err
 	}
-	return reportProfile(std, p, c.output, c.out)
+	if err := reportProfile(std, p, c.output, c.out); err != nil {
+		return err
+	}
+	return missingError(p)
 }
 
 // unusedWithProfiles lists the flags that mean nothing for a profile and

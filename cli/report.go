@@ -178,11 +178,14 @@ func (c *reportCmd) runProfiles(cmd *cobra.Command, std IO, args []string) error
 	if err := unusedWithProfiles(cmd, "follow", "format", "pattern", "window", "redact", "redact-fields", "redact-key", "baseline", "analyse-time"); err != nil {
 		return err
 	}
-	p, err := mergedProfile(args)
+	p, err := mergedProfile(std, args)
 	if err != nil {
 		return err
 	}
-	return reportProfile(std, p, c.output, c.prof.out)
+	if err := reportProfile(std, p, c.output, c.prof.out); err != nil {
+		return err
+	}
+	return missingError(p)
 }
 
 func validOutput(o string) bool {

@@ -35,6 +35,10 @@ type WorkerOptions struct {
 	// (by the record's Kafka timestamp), and at the latest once it has
 	// been open for Bucket, so offsets are committed at least that often.
 	Bucket time.Duration
+	// MaxRecords closes a profile once it counts this many records (0:
+	// 100,000): a profile keeps every value and pair cell of its records
+	// (see model.Options.NoIdentifiers), so this bounds the memory.
+	MaxRecords int64
 	// For ends the worker after this long, Idle once no record has come
 	// for this long (0: neither).
 	For, Idle time.Duration
@@ -133,6 +137,9 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 	}
 	if opt.MaxLine <= 0 {
 		opt.MaxLine = 1 << 20
+	}
+	if opt.MaxRecords <= 0 {
+		opt.MaxRecords = 100_000
 	}
 	if err := os.MkdirAll(opt.Dir, 0o755); err != nil {
 		return nil, fmt.Errorf("worker: --profiles: %w", err)
@@ -305,6 +312,9 @@ func (w *Worker) take(r *kgo.Record) error {
 	seg.In.Take(recordLine(r, fmt.Sprintf("%s/%d", r.Topic, r.Partition), w.opt.MaxLine))
 	seg.To = r.Offset + 1
 	seg.Records++
+	if seg.Records >= w.opt.MaxRecords {
+		return w.closeSeg(r.Partition)
+	}
 	return nil
 }
 

@@ -3,8 +3,8 @@ package kafka
 import (
 	"context"
 	"errors"
-	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -19,6 +19,8 @@ import (
 	"bitsift/demo"
 	"bitsift/ingest"
 	"bitsift/internal/kafkafake"
+	"bitsift/model"
+	"bitsift/profile"
 )
 
 // waitUntil polls cond until it holds, failing the test after a generous
@@ -196,19 +198,25 @@ func (l testLog) Write(p []byte) (int, error) {
 	return len(p), nil
 }
 
-// TestFleetChainsCoverEveryOffsetOnce: whatever the workers did, the
-// chains of the profiles they left cover every offset of every partition
-// once, and the killed worker's last profile is left out as a repeat.
-func TestFleetChainsCoverEveryOffsetOnce(t *testing.T) {
+// TestFleetMergeEqualsOneProcess is the three-worker test: whatever the
+// workers did (one joined late, one left, one was killed between writing
+// a profile and committing its offsets), the chains of the profiles they
+// left cover every offset of every partition once, the killed worker's
+// last profile is left out as a repeat, and the merged profile gives the
+// figures one process gives reading the same records: every field's
+// entropy, distinct count and kind, every pair's joint and conditional
+// entropy. The one-process reading is the independent side here: it
+// reads the lines as produced, through one Ingester, without Kafka,
+// profiles or merging.
+func TestFleetMergeEqualsOneProcess(t *testing.T) {
 	if testing.Short() {
 		t.Skip("-short: three workers in a consumer group for seconds")
 	}
-	encode := func(s *Segment, w io.Writer) error {
-		_, err := fmt.Fprintf(w, "%d\n", s.Records)
-		return err
-	}
-	newIn := func() (*ingest.Ingester, error) { return ingest.New(ingest.Config{}) }
-	f := runFleet(t, encode, newIn)
+	all, _ := model.ParseWindow("all")
+	cfg := ingest.Config{Model: model.Options{Window: all, KeepText: true, NoIdentifiers: true}}
+	encode := func(s *Segment, w io.Writer) error { return profile.Write(w, SegmentProfile(s, nil, 1<<16)) }
+	f := runFleet(t, encode, func() (*ingest.Ingester, error) { return ingest.New(cfg) })
+
 	spans, paths := spansIn(t, f.dir, true)
 	ch := Chains(spans)
 	if len(ch.Gaps) > 0 || len(ch.Overlaps) > 0 {
@@ -217,26 +225,96 @@ func TestFleetChainsCoverEveryOffsetOnce(t *testing.T) {
 	if len(ch.Repeats) == 0 {
 		t.Errorf("no repeat: the killed worker's uncommitted profile should repeat a range")
 	}
-	var records int64
-	ends := map[int32]int64{}
-	for _, s := range ch.Use {
-		b, err := os.ReadFile(paths[s.Index])
-		if err != nil {
-			t.Fatal(err)
-		}
-		n, _ := strconv.ParseInt(strings.TrimSpace(string(b)), 10, 64)
-		if n != s.To-s.From {
-			t.Errorf("%v counts %d records", s, n)
-		}
-		records += n
-		ends[s.Partition] = s.To
-	}
+	var used int64
 	for _, c := range ch.Covered {
 		if c.From != 0 {
 			t.Errorf("partition %d chained from %d, not 0", c.Partition, c.From)
 		}
+		used += c.To - c.From
 	}
-	if records != int64(len(f.lines)) || len(ends) != 6 {
-		t.Fatalf("the chains count %d records over %d partitions; %d were produced into 6", records, len(ends), len(f.lines))
+	if used != int64(len(f.lines)) || len(ch.Covered) != 6 {
+		t.Fatalf("the chains cover %d offsets over %d partitions; %d records were produced into 6", used, len(ch.Covered), len(f.lines))
 	}
+
+	var ps []*profile.Profile
+	for _, p := range paths {
+		pr, err := profile.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ps = append(ps, pr)
+	}
+	merged, notes, err := Merge(ps)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(notes) != len(ch.Repeats) || len(merged.Faults) != 0 {
+		t.Errorf("notes %v, faults %v", notes, merged.Faults)
+	}
+	got := merged.Snapshot(model.SnapshotOptions{})
+
+	ref, err := ingest.New(ingest.Config{Model: model.Options{Window: all}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, l := range f.lines {
+		ref.Line(l, int64(i+1), "produced")
+	}
+	ref.Flush()
+	want := ref.Snapshot(model.SnapshotOptions{})
+	compareSnapshots(t, got, want)
+}
+
+// compareSnapshots checks every field (entropy, distinct values, kind,
+// companion or not) and every pair's joint and conditional entropies.
+func compareSnapshots(t *testing.T, got, want *model.Snapshot) {
+	t.Helper()
+	if got.Records != want.Records || len(got.Fields) != len(want.Fields) {
+		t.Fatalf("merged: %d records, %d fields; one process: %d, %d", got.Records, len(got.Fields), want.Records, len(want.Fields))
+	}
+	const eps = 1e-9
+	for _, w := range want.Fields {
+		i := got.Index(w.Name)
+		if i < 0 {
+			t.Errorf("field %s missing from the merge", w.Name)
+			continue
+		}
+		g := got.Fields[i]
+		if g.Distinct != w.Distinct || g.Kind != w.Kind || math.Abs(g.Entropy-w.Entropy) > eps || g.BestGiven != w.BestGiven || math.Abs(g.Residual-w.Residual) > eps {
+			t.Errorf("field %s: merged H %.12f, %d distinct, %v; one process %.12f, %d, %v", w.Name, g.Entropy, g.Distinct, g.Kind, w.Entropy, w.Distinct, w.Kind)
+		}
+	}
+	pairs := 0
+	for a := range want.Fields {
+		for b := range want.Fields {
+			if a == b || !want.HasPair(a, b) {
+				continue
+			}
+			ga, gb := got.Index(want.Fields[a].Name), got.Index(want.Fields[b].Name)
+			if !got.HasPair(ga, gb) {
+				t.Errorf("pair %s, %s missing from the merge", want.Fields[a].Name, want.Fields[b].Name)
+				continue
+			}
+			pairs++
+			if math.Abs(got.Joint(ga, gb)-want.Joint(a, b)) > eps || math.Abs(got.Cond(ga, gb)-want.Cond(a, b)) > eps {
+				t.Errorf("pair %s, %s: merged H %.12f, H(|) %.12f; one process %.12f, %.12f", want.Fields[a].Name, want.Fields[b].Name,
+					got.Joint(ga, gb), got.Cond(ga, gb), want.Joint(a, b), want.Cond(a, b))
+			}
+		}
+	}
+	if pairs == 0 {
+		t.Fatal("no pair compared")
+	}
+	extra := 0
+	for a := range got.Fields {
+		for b := range got.Fields {
+			if a != b && got.HasPair(a, b) {
+				extra++
+			}
+		}
+	}
+	if extra != pairs {
+		t.Errorf("the merge has %d ordered pairs, one process %d", extra, pairs)
+	}
+	t.Logf("compared %d fields and %d ordered pairs over %d records", len(want.Fields), pairs, want.Records)
 }
