@@ -119,9 +119,9 @@ func runFleet(t *testing.T, encode func(*Segment, io.Writer) error, newIngester 
 	}()
 
 	opts := func(name string, crashAfter int) WorkerOptions {
-		return WorkerOptions{Conn: Conn{Brokers: c.Brokers, ClientID: name}, Topic: topic, Group: "profilers", Dir: dir,
+		return WorkerOptions{Conn: Conn{Brokers: c.Brokers, ClientID: name}, Topic: topic, Group: topic + "-profilers", Dir: dir,
 			Start: Start{Kind: "oldest"}, Bucket: 400 * time.Millisecond, Idle: 3 * time.Second,
-			Ingester: newIngester, Encode: encode, SessionTimeout: time.Second, crashAfter: crashAfter, Log: testLog{t, name}}
+			Ingester: newIngester, Encode: encode, SessionTimeout: c.SessionTimeout(), crashAfter: crashAfter, Log: testLog{t, name}}
 	}
 	type result struct {
 		name string

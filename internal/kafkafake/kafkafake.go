@@ -70,6 +70,19 @@ func Start(t testing.TB, parts int32) (*Cluster, string) {
 	return c, topic
 }
 
+// Real says the cluster is the one KAFKA_BROKERS names.
+func (c *Cluster) Real() bool { return c.fake == nil }
+
+// SessionTimeout is a consumer group session timeout the cluster allows:
+// one second on kfake (set so in New), six on a real cluster (the least a
+// broker allows by default, group.min.session.timeout.ms).
+func (c *Cluster) SessionTimeout() time.Duration {
+	if c.Real() {
+		return 6 * time.Second
+	}
+	return time.Second
+}
+
 // Close stops a kfake cluster (nothing for a real one).
 func (c *Cluster) Close() {
 	if c.fake != nil {
