@@ -1,12 +1,16 @@
 package cli
 
 import (
+	"bytes"
 	"context"
+	"io"
 	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
+	"sync"
 	"testing"
+	"time"
 
 	"github.com/twmb/franz-go/pkg/kadm"
 
@@ -26,7 +30,7 @@ func TestWorkerMergeReportsGaps(t *testing.T) {
 	dir := t.TempDir()
 	worker := func() {
 		t.Helper()
-		code, _, errs := run(t, "", "worker", "--brokers", brokers, "--topic", topic, "--group", topic + "-g", "--profiles", dir,
+		code, _, errs := run(t, "", "worker", "--brokers", brokers, "--topic", topic, "--group", topic+"-g", "--profiles", dir,
 			"--idle", "1500ms", "--max-records", "50")
 		if code != 0 {
 			t.Fatalf("worker: exit %d: %s", code, errs)
@@ -81,4 +85,67 @@ func TestWorkerMergeReportsGaps(t *testing.T) {
 func firstLines(s string, n int) string {
 	l := strings.SplitN(s, "\n", n+1)
 	return strings.Join(l[:min(n, len(l))], "\n")
+}
+
+// syncBuffer is a bytes.Buffer safe to read while a command writes it.
+type syncBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (s *syncBuffer) Write(p []byte) (int, error) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.Write(p)
+}
+
+func (s *syncBuffer) String() string {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.b.String()
+}
+
+// TestWorkerStopsAfterItsProfile: a worker stopped as SIGTERM stops it (its
+// context cancelled) writes the profile it has open and commits it: the
+// next worker of the group finds nothing left to read, and the merge
+// counts every record once.
+func TestWorkerStopsAfterItsProfile(t *testing.T) {
+	c, topic := kafkafake.Start(t, 1)
+	brokers := strings.Join(c.Brokers, ",")
+	produceLines(t, c, topic, 1, demoLines(250))
+	dir := t.TempDir()
+	args := []string{"worker", "--brokers", brokers, "--topic", topic, "--group", topic + "-g", "--profiles", dir, "--bucket", "1h", "--max-records", "100"}
+	ctx, stop := context.WithCancel(context.Background())
+	defer stop()
+	var errs syncBuffer
+	done := make(chan int, 1)
+	go func() { done <- Run(ctx, args, IO{In: strings.NewReader(""), Out: io.Discard, Err: &errs}) }()
+	profiles := func() []string { p, _ := filepath.Glob(filepath.Join(dir, "*.bsp")); return p }
+	deadline := time.Now().Add(60 * time.Second)
+	for len(profiles()) < 2 {
+		if time.Now().After(deadline) {
+			t.Fatalf("no two profiles written: %s", errs.String())
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	stop() // as SIGTERM does (main's signal context)
+	select {
+	case code := <-done:
+		if code != 0 {
+			t.Fatalf("worker stopped with exit %d: %s", code, errs.String())
+		}
+	case <-time.After(60 * time.Second):
+		t.Fatal("the worker did not stop")
+	}
+	last := regexp.MustCompile(`\.p0000\.0+200-0+250\.`)
+	if ps := profiles(); len(ps) != 3 || !last.MatchString(strings.Join(ps, " ")) {
+		t.Fatalf("profiles after the stop: %v, want the open one [200, 250) written too", ps)
+	}
+	code, _, e := run(t, "", "worker", "--brokers", brokers, "--topic", topic, "--group", topic+"-g", "--profiles", dir, "--idle", "1s")
+	if code != 0 || len(profiles()) != 3 {
+		t.Fatalf("the next worker: exit %d, %d profiles (its offsets were not committed?): %s", code, len(profiles()), e)
+	}
+	if code, out, e := run(t, "", "merge", dir); code != 0 || !strings.Contains(out, "250 lines read: 250 records") || e != "" {
+		t.Errorf("merge: exit %d, stderr %q:\n%s", code, e, firstLines(out, 2))
+	}
 }
