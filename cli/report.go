@@ -24,6 +24,7 @@ type streamFlags struct {
 	redactFields []string
 	analyseTime  bool
 	redactKey    string
+	templates    []string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -36,6 +37,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
+	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -47,7 +49,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates}
 	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
 		return ingest.Config{}, err
 	}
@@ -166,6 +168,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
 		return writeError(err)
+	}
+	if err := readNotes(std, in); err != nil {
+		return err
 	}
 	return inputError(readErr, snap)
 }

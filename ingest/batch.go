@@ -133,6 +133,7 @@ func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
 		text := b.text[l.start:l.end]
 		in.enter(l.source)
 		in.input.Lines++
+		in.observeLine(l.num, l.source)
 		in.keepRaw(text, l.num, l.source, l.tooLong)
 		if !in.account(l.kind, l.reason, l.num, l.source, text) {
 			continue
@@ -143,7 +144,7 @@ func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
 		} else {
 			in.markTime()
 		}
-		in.commit(&b.recs[i], l.num, t)
+		in.commit(&b.recs[i], l.num, t, l.source)
 	}
 	return first
 }

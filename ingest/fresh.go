@@ -29,7 +29,7 @@ func (in *Ingester) Fresh() (*Ingester, error) {
 	n.setFormat(f, in.conf)
 	n.started = true
 	n.comp = in.comp
-	n.comp.declare(n.model)
+	n.comp.Declare(n.model)
 	n.times = in.times
 	return n, nil
 }

@@ -14,6 +14,7 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"bitsift/companion"
 	"bitsift/ingest/raw"
 	"bitsift/model"
 	"bitsift/parse"
@@ -58,6 +59,11 @@ type Config struct {
 	// RedactKey, when set, is the redaction key (see NewRedactorWithKey)
 	// instead of one drawn at random for the run.
 	RedactKey []byte
+	// Templates names fields that get a FIELD~template companion whatever
+	// the sample says (--template FIELD).
+	Templates []string
+	// Observer, when set, sees what becomes of every line (annotate.go).
+	Observer Observer
 }
 
 // Ingester turns lines into model records.
@@ -70,7 +76,10 @@ type Ingester struct {
 	rec    parse.Record
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
-	comp   companions
+	comp   companion.Set
+	det    detectState // detect.go
+	// recordTemplates and replayTemplates: see annotate.go.
+	recordTemplates, replayTemplates *companion.Recording
 	// timeMarked: the timestamp field found has been marked in the model.
 	timeMarked bool
 
@@ -148,6 +157,7 @@ func (in *Ingester) Model() *model.Model { return in.model }
 // be reused by the caller after Line returns.
 func (in *Ingester) Line(line []byte, num int64, source string) {
 	in.input.Lines++
+	in.observeLine(num, source)
 	in.keepRaw(line, num, source, false)
 	if !in.started {
 		in.pending = append(in.pending, pendingLine{bytes.Clone(line), num, source})
@@ -162,7 +172,7 @@ func (in *Ingester) Line(line []byte, num int64, source string) {
 		return
 	}
 	if in.read(line, num, source) {
-		in.add(num)
+		in.add(num, source)
 	}
 }
 
@@ -191,6 +201,9 @@ func (in *Ingester) keepRaw(text []byte, num int64, source string, tooLong bool)
 
 func (in *Ingester) reject(num int64, source, reason string, text []byte) {
 	in.input.Rejected++
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Rejected(num, source, reason)
+	}
 	if in.redact != nil {
 		text = nil // a rejected line may hold the very values being hidden
 	}
@@ -224,25 +237,28 @@ func (in *Ingester) fault(source string, err error) {
 // into the model.
 func (in *Ingester) start() {
 	in.started = true
+	texts := make([][]byte, len(in.pending))
+	for i, p := range in.pending {
+		texts[i] = p.text
+	}
+	in.checkForced(texts)
 	if in.format == nil {
-		sample := make([][]byte, len(in.pending))
-		for i, p := range in.pending {
-			sample[i] = p.text
-		}
-		d, err := parse.Detect(sample)
+		d, err := parse.Detect(in.detectionSample(texts))
 		if err != nil || d.Confidence < MinConfidence {
 			// Nothing recognisable: every line is rejected with that
 			// reason, so nothing vanishes unexplained.
 			d.Format, d.Confidence = unknownFormat{}, 0
 		}
 		in.setFormat(d.Format, d.Confidence)
+		in.formatChosen()
 	}
 	pending := in.pending
 	in.pending = nil
 	type sampled struct {
-		rec  parse.Record
-		num  int64
-		time int64
+		rec    parse.Record
+		num    int64
+		time   int64
+		source string
 	}
 	var recs []sampled
 	for i, p := range pending {
@@ -251,14 +267,14 @@ func (in *Ingester) start() {
 			// but into the sample).
 			for in.rec.Reset(); in.joiner.Flush(&in.rec); in.rec.Reset() {
 				in.input.Parts--
-				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime()})
+				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime(), source: pending[i-1].source})
 				recs[len(recs)-1].rec.CopyFrom(&in.rec)
 			}
 		}
 		if !in.read(p.text, p.num, p.source) {
 			continue
 		}
-		recs = append(recs, sampled{num: p.num, time: in.recTime()})
+		recs = append(recs, sampled{num: p.num, time: in.recTime(), source: p.source})
 		recs[len(recs)-1].rec.CopyFrom(&in.rec)
 	}
 	if !in.cfg.NoCompanions {
@@ -266,10 +282,10 @@ func (in *Ingester) start() {
 		for i := range recs {
 			sample[i] = &recs[i].rec
 		}
-		in.comp = chooseCompanions(sample)
-		in.comp.unredacted(in.redact)
-		in.comp.declare(in.model)
-		in.comp.warm(sample)
+		if len(pending) > 0 {
+			sample = append(sample, in.spreadRecords(pending[0].source)...)
+		}
+		in.chooseCompanions(sample)
 	}
 	if in.redact != nil {
 		for i := range recs {
@@ -277,7 +293,7 @@ func (in *Ingester) start() {
 		}
 	}
 	for i := range recs {
-		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
+		in.commit(&recs[i].rec, recs[i].num, recs[i].time, recs[i].source)
 	}
 }
 
@@ -286,7 +302,14 @@ func (in *Ingester) start() {
 func (in *Ingester) read(line []byte, num int64, source string) bool {
 	in.lastNum = num
 	kind, reason := parseLine(in.format, line, false, &in.rec)
-	return in.account(kind, reason, num, source, line)
+	ok := in.account(kind, reason, num, source, line)
+	switch {
+	case ok:
+		in.accepted()
+	case kind != linePart && reason != "blank line":
+		in.rejected(line)
+	}
+	return ok
 }
 
 // account counts a line parsed as kind (rejected with reason, or a part)
@@ -297,6 +320,9 @@ func (in *Ingester) account(kind lineKind, reason string, num int64, source stri
 		return true
 	case linePart:
 		in.input.Parts++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Part(num, source)
+		}
 	default:
 		if reason == "blank line" || reason == reasonTooLong {
 			text = nil
@@ -328,20 +354,23 @@ func (in *Ingester) markTime() {
 }
 
 // add takes the record in in.rec, read from line num, into the model.
-func (in *Ingester) add(num int64) {
-	in.commit(&in.rec, num, in.recTime())
+func (in *Ingester) add(num int64, source string) {
+	in.commit(&in.rec, num, in.recTime(), source)
 }
 
 // commit adds the companions to a parsed record, redacts it, and takes it
 // into the model.
-func (in *Ingester) commit(rec *parse.Record, num, t int64) {
-	in.comp.apply(rec)
+func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
+	in.comp.Apply(rec)
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
-		// not redacted (companions.unredacted).
+		// not redacted (chooseCompanions).
 		in.redact.Apply(rec)
 	}
 	in.model.Add(rec, num, t)
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Record(rec, num, source, t)
+	}
 }
 
 // endSource closes records left open at the end of a source (CRI partial
@@ -357,7 +386,7 @@ func (in *Ingester) endSource() {
 			return
 		}
 		in.input.Parts--
-		in.add(in.lastNum)
+		in.add(in.lastNum, in.lastSource)
 	}
 }
 
@@ -377,6 +406,7 @@ func (in *Ingester) Flush() {
 // Snapshot takes a snapshot of the model with the input accounting.
 func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s := in.model.Snapshot(opt)
+	in.labelTemplates(s)
 	s.Input = in.input
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
 	s.Input.RejectedExamples = append([]model.Rejection(nil), in.input.RejectedExamples...)
@@ -394,6 +424,7 @@ func (in *Ingester) take(l parse.Line) {
 	in.enter(l.Source)
 	if l.TooLong {
 		in.input.Lines++
+		in.observeLine(l.Num, l.Source)
 		in.reject(l.Num, l.Source, reasonTooLong, nil)
 		return
 	}
@@ -407,8 +438,12 @@ const reasonTooLong = "line longer than --max-line"
 // does not run on into the next input.
 func (in *Ingester) enter(source string) {
 	if source != in.lastSource {
+		if !in.started && in.det.perFile && len(in.pending) > 0 {
+			in.start() // the last file was shorter than the sample
+		}
 		if in.started && in.lastSource != "" {
 			in.endSource()
+			in.nextFile()
 		}
 		in.lastSource = source
 	}
@@ -478,6 +513,7 @@ var errDone = errors.New("source ended")
 // or zstd. It goes on past a file that fails, and returns the first fault.
 func (in *Ingester) ReadFiles(ctx context.Context, paths []string) error {
 	in.input.Sources = append(in.input.Sources, paths...)
+	in.prepareFiles(paths)
 	src := parse.NewFileSource(paths, in.cfg.MaxLine)
 	src.Stdin = in.cfg.Stdin
 	defer src.Close()

@@ -39,7 +39,7 @@ func parallelOK(src parse.Source) bool {
 
 // settled says whether the remaining lines can go to the pipeline.
 func (in *Ingester) settled() bool {
-	return in.started && in.format != nil && parallelFormats[in.format.Name()] &&
+	return in.started && in.format != nil && parallelFormats[in.format.Name()] && !in.det.perFile &&
 		(in.times.Key() != "" || in.model.Seen() > timeFinderTries)
 }
 
