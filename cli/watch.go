@@ -94,10 +94,7 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if c.forDur > 0 {
 		src = newUntilSource(fl, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, src)
-	}
-	return showScreen(ctx, std, cfg, src)
+	return present(ctx, std, cfg, src)
 }
 
 // runTopic is watch on a Kafka topic: from --start (newest by default)
@@ -121,10 +118,7 @@ func (c *watchCmd) runTopic(ctx context.Context, std IO) error {
 	if c.forDur > 0 {
 		src = newUntilSource(ks, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, src)
-	}
-	return showScreen(ctx, std, cfg, src)
+	return present(ctx, std, cfg, src)
 }
 
 // replayCmd is `bitsift replay`: archives paced on the screen, or read to
@@ -185,10 +179,7 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return usage("replay: %v", err)
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, r)
-	}
-	return showScreen(ctx, std, cfg, r)
+	return present(ctx, std, cfg, r)
 }
 
 // runTopic is replay on a Kafka topic: the records it holds from --start
@@ -213,6 +204,12 @@ func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
 	if err != nil {
 		return err
 	}
+	return present(ctx, std, cfg, src)
+}
+
+// present shows src on the screen, or reads it into the text report
+// when standard output is not a terminal.
+func present(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
 	if !std.IsTerminal {
 		return printReport(ctx, std, cfg, src)
 	}
