@@ -106,7 +106,7 @@ func TestTopicUsage(t *testing.T) {
 		{"report", "--brokers", "127.0.0.1:1", "--topic", "logs", "--start", "yesterday"},
 		{"report", "--brokers", "127.0.0.1:1", "--topic", "logs", "--idle", "1s"},
 		{"watch", "--brokers", "127.0.0.1:1", "--topic", "logs", "--from-start"},
-		{"replay", "--brokers", "127.0.0.1:1", "--topic", "logs", "--speed", "10"},
+		{"replay", "--brokers", "127.0.0.1:1", "--topic", "logs", "--keep-order"},
 	} {
 		t.Run(strings.Join(args, " "), func(t *testing.T) {
 			if code, _, errs := run(t, "", args...); code != ExitUsage || errs == "" {

@@ -184,15 +184,14 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 
 // runTopic is replay on a Kafka topic: the records it holds from --start
 // (oldest by default) to the end offsets it had when replay began, as fast
-// as they can be read. Pacing by the records' times is built for files
-// only.
+// as they can be read or paced by the records' timestamps (--speed N;
+// partitions come interleaved as they are fetched, so the pace follows
+// the records' times only roughly).
 func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
 	speed, err := parse.ParseSpeed(c.speed)
 	switch {
 	case err != nil:
 		return usage("replay: --%v", err)
-	case speed != 0:
-		return usage("replay: a topic is replayed at --speed max only (pacing by record time is built for files)")
 	case c.keepOrder:
 		return usage("replay: --keep-order is for files")
 	}
@@ -200,9 +199,20 @@ func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
 	if err != nil {
 		return err
 	}
-	src, err := c.topic.open(ctx, true, 0, cfg.MaxLine)
+	ks, err := c.topic.open(ctx, true, 0, cfg.MaxLine)
 	if err != nil {
 		return err
+	}
+	var src parse.Source = ks
+	if speed > 0 {
+		format := cfg.Format
+		if format == "pattern" {
+			format = ""
+		}
+		if src, err = parse.NewSourceReplayer(ks, parse.ReplayOptions{Speed: speed, Format: format, MaxLine: cfg.MaxLine}); err != nil {
+			ks.Close()
+			return usage("replay: %v", err)
+		}
 	}
 	return present(ctx, std, cfg, src)
 }
