@@ -27,12 +27,15 @@ type Cluster struct {
 
 // New starts a kfake cluster (three brokers) with the topics, each with
 // parts partitions.
-func New(parts int32, topics ...string) (*Cluster, error) {
+func New(parts int32, topics ...string) (*Cluster, error) { return NewWith(parts, topics) }
+
+// NewWith is New with more kfake options (TLS, SASL users).
+func NewWith(parts int32, topics []string, more ...kfake.Opt) (*Cluster, error) {
 	opts := []kfake.Opt{kfake.NumBrokers(3), kfake.SeedTopics(parts, topics...),
 		// Groups re-balance fast in tests: a member that died is noticed
 		// within the session timeout.
 		kfake.GroupMinSessionTimeout(500 * time.Millisecond)}
-	c, err := kfake.NewCluster(opts...)
+	c, err := kfake.NewCluster(append(opts, more...)...)
 	if err != nil {
 		return nil, err
 	}
