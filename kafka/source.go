@@ -252,24 +252,27 @@ func recordLine(r *kgo.Record, name string, maxLine int) parse.Line {
 	return l
 }
 
-// noteCaughtUp records, once, the moment every partition has been read to
-// the end of its log as last seen.
+// behindLag is the lag, in records, past which a source that had caught
+// up says it has fallen behind.
+const behindLag = 10_000
+
+// noteCaughtUp records the consumer's state changing as events: every
+// partition read to the end of its log as last seen ("caught up"), and
+// after that a lag past behindLag ("behind").
 func (s *Source) noteCaughtUp() {
-	if s.caughtUp {
-		return
-	}
 	s.mu.Lock()
-	up := true
+	var lag int64
 	for _, ps := range s.parts {
-		if ps.Position < ps.End {
-			up = false
-			break
-		}
+		lag += max(ps.End-ps.Position, 0)
 	}
 	s.mu.Unlock()
-	if up {
+	switch {
+	case !s.caughtUp && lag == 0:
 		s.caughtUp = true
 		s.event("caught up", "every partition read to the end of its log")
+	case s.caughtUp && lag > behindLag:
+		s.caughtUp = false
+		s.event("behind", fmt.Sprintf("%s records behind the end of the log", thousands(lag)))
 	}
 }
 
