@@ -112,11 +112,12 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
 // takeBatch takes b's lines in order: faults are recorded, lines of a
 // parsed batch go straight to the model, the others through take. between
 // (when not nil) is called every chunkLines lines, so that the live owner
-// can answer requests. It returns the first fault.
-func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
+// can answer requests; when it returns false the rest is left (the live
+// runner is stopping). It returns the first fault.
+func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 	for i := range b.lines {
-		if between != nil && i%chunkLines == chunkLines-1 {
-			between()
+		if between != nil && i%chunkLines == chunkLines-1 && !between() {
+			return first // stopping: the rest is not wanted
 		}
 		l := &b.lines[i]
 		if l.err != nil {
