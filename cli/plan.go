@@ -156,7 +156,7 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 // runProfiles plans from profiles: chosen from the counts alone, as a
 // profile keeps no raw line to measure on or rebuild.
 func (c *planCmd) runProfiles(ctx context.Context, std IO, paths []string) error {
-	prof, err := mergedProfile(paths)
+	prof, err := mergedProfile(std, paths)
 	if err != nil {
 		return err
 	}
