@@ -20,7 +20,7 @@ import (
 // planOutputs and planEmits are the values of plan's -o and --emit.
 var (
 	planOutputs = []string{"text", "json", "html"}
-	planEmits   = []string{"jq", "otel"}
+	planEmits   = []string{"jq", "jq-restore", "otel"}
 )
 
 type planCmd struct {
@@ -140,6 +140,8 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		switch {
 		case c.emit == "jq":
 			return plan.WriteJQ(w, p)
+		case c.emit == "jq-restore":
+			return plan.WriteJQRestore(w, p)
 		case c.emit == "otel":
 			return plan.WriteOTel(w, p)
 		case c.output == "json":

@@ -46,16 +46,57 @@ type Export struct {
 // ExportDeriv is one derived field: the fields it is rebuilt from and the
 // rows of its mapping table.
 type ExportDeriv struct {
-	Field        string   `json:"field"`
-	From         []string `json:"from"`
-	TableEntries int      `json:"table_entries"`
-	Exact        bool     `json:"exact"`
+	Field        string      `json:"field"`
+	From         []string    `json:"from"`
+	TableEntries int         `json:"table_entries"`
+	Exact        bool        `json:"exact"`
+	Table        []ExportRow `json:"table"`
 }
 
-// ExportConst is a dropped constant and the value kept once.
+// ExportRow is one row of a mapping table: the determinants' values and
+// the derived value. For JSON input the values are as the log wrote them
+// (200 stays a number); for other formats they are strings. A value the
+// record lacks is written {"absent": true}, which no log value can be: a
+// non-empty object is never one field's value, its members are fields.
+type ExportRow struct {
+	From  []json.RawMessage `json:"from"`
+	Value json.RawMessage   `json:"value"`
+}
+
+// ExportConst is a dropped constant and the value kept once (as the log
+// wrote it, for JSON input).
 type ExportConst struct {
-	Field string `json:"field"`
-	Value string `json:"value"`
+	Field string          `json:"field"`
+	Value json.RawMessage `json:"value"`
+}
+
+// absentJSON is how a table writes "the record lacks the field".
+var absentJSON = json.RawMessage(`{"absent":true}`)
+
+// JSON is the value as the plan's JSON writes it.
+func (v TableValue) JSON(raw bool) json.RawMessage {
+	switch {
+	case v.Absent:
+		return absentJSON
+	case raw:
+		return json.RawMessage(v.Text)
+	}
+	return json.RawMessage(appendJSONString(nil, v.Text))
+}
+
+func exportRows(t *Table) []ExportRow {
+	rows := []ExportRow{}
+	if t == nil {
+		return rows
+	}
+	for _, r := range t.Rows {
+		e := ExportRow{From: make([]json.RawMessage, len(r.From)), Value: r.Value.JSON(t.JSON)}
+		for i, f := range r.From {
+			e.From[i] = f.JSON(t.JSON)
+		}
+		rows = append(rows, e)
+	}
+	return rows
 }
 
 // ExportBefore holds the sizes before and after the plan.
@@ -108,10 +149,14 @@ func (p *Plan) Export() *Export {
 		case f.Action == Drop:
 			e.Drop = append(e.Drop, f.Name)
 			if f.Exact {
-				e.Constants = append(e.Constants, ExportConst{f.Name, f.Value})
+				v := TableValue{Text: f.Value}.JSON(false)
+				if f.Table != nil && len(f.Table.Rows) == 1 {
+					v = f.Table.Rows[0].Value.JSON(f.Table.JSON)
+				}
+				e.Constants = append(e.Constants, ExportConst{f.Name, v})
 			}
 		case f.Action == Derive:
-			e.Derive = append(e.Derive, ExportDeriv{f.Name, f.From, f.TableEntries, f.Exact})
+			e.Derive = append(e.Derive, ExportDeriv{f.Name, f.From, f.TableEntries, f.Exact, exportRows(f.Table)})
 		}
 		e.Fields = append(e.Fields, ExportField{
 			Name: f.Name, Entropy: round(f.Entropy), Huffman: round(f.Huffman), Action: f.Action,

@@ -166,6 +166,9 @@ type Field struct {
 	Mismatches    int     // sample records where the rebuilt value differs
 	SampleEntropy float64 // H(F) over the sample, bits
 	Huffman       float64 // expected Huffman code length over the sample, bits
+	// Table rebuilds a dropped constant or derived field: nil for the rest
+	// and before Measure.
+	Table *Table
 }
 
 // Dropped says whether the plan deletes the field.
