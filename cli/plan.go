@@ -20,7 +20,7 @@ import (
 // planOutputs and planEmits are the values of plan's -o and --emit.
 var (
 	planOutputs = []string{"text", "json", "html"}
-	planEmits   = []string{"jq", "jq-restore", "otel"}
+	planEmits   = plan.Emits
 )
 
 type planCmd struct {
@@ -30,6 +30,7 @@ type planCmd struct {
 	output     string
 	emit       string
 	out        string
+	tables     string
 }
 
 func newPlanCmd(std IO) *cobra.Command {
@@ -65,6 +66,7 @@ regulations may require: check your retention obligations first.`,
 	fs.StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(planOutputs, ", "))
 	fs.StringVar(&c.emit, "emit", "", "print a program that applies the plan instead: "+strings.Join(planEmits, ", "))
 	fs.StringVar(&c.out, "out", "", "write the output to FILE (whole or not at all) instead of stdout")
+	fs.StringVar(&c.tables, "tables", "", "also write the constants and mapping tables to FILE as CSV, for a lookup at query time")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return planOutputs, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -128,6 +130,13 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if snap.Records == 0 {
 		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
 	}
+	if c.emit != "" && !plan.Fits(c.emit, snap.Input.Format) {
+		return usage("plan: --emit %s cannot process %s records; the exports that fit this input: %s",
+			c.emit, snap.Input.Format, strings.Join(plan.EmitsFor(snap.Input.Format), ", "))
+	}
+	if redacting && (c.emit == plan.EmitJQRestore || c.emit == plan.EmitJQRecords || c.emit == plan.EmitOTelRecords || c.tables != "") {
+		return usage("plan: --redact keeps no raw lines, so there are no tables or record classes to write (--emit jq-restore, jq-records, otel-records, --tables)")
+	}
 	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()}
 	var p *plan.Plan
 	if redacting {
@@ -140,16 +149,25 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		switch {
 		case c.emit == "jq":
 			return plan.WriteJQ(w, p)
-		case c.emit == "jq-restore":
+		case c.emit == plan.EmitJQRestore:
 			return plan.WriteJQRestore(w, p)
-		case c.emit == "otel":
+		case c.emit == plan.EmitOTel:
 			return plan.WriteOTel(w, p)
+		case c.emit == plan.EmitJQRecords:
+			return plan.WriteJQRecords(w, p)
+		case c.emit == plan.EmitOTelRecords:
+			return plan.WriteOTelRecords(w, p)
 		case c.output == "json":
 			return plan.WriteJSON(w, p)
 		case c.output == "html":
 			return report.WriteHTML(w, report.Build(snap), p)
 		}
 		return plan.WriteText(w, p)
+	}
+	if c.tables != "" {
+		if err := plan.WriteFile(c.tables, func(w io.Writer) error { return plan.WriteTablesCSV(w, p) }); err != nil {
+			return &ExitError{Code: ExitUnreadable, Err: err}
+		}
 	}
 	if c.out != "" {
 		if err := plan.WriteFile(c.out, write); err != nil {

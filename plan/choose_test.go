@@ -148,3 +148,19 @@ func TestChainBound(t *testing.T) {
 		}
 	})
 }
+
+// TestPinnedDropIsDrop: a derived field pinned to drop is dropped, not
+// derived (no table ships), and the plan says what that loses: the
+// field's whole entropy. The demo's relation (package demo): route
+// determines method.
+func TestPinnedDropIsDrop(t *testing.T) {
+	free := demoPlan(t, 5_000, Options{})
+	if f := free.Field("method"); f.Action != Derive {
+		t.Fatalf("unpinned method: %s, want derive", f.Action)
+	}
+	p := demoPlan(t, 5_000, Options{Pins: map[string]Pin{"method": PinDrop}})
+	f := p.Field("method")
+	if f.Action != Drop || f.Table != nil || f.BitsLost != f.Entropy || p.Lossless {
+		t.Errorf("pinned method: %s, table %v, lost %v of H %v, lossless %v", f.Action, f.Table, f.BitsLost, f.Entropy, p.Lossless)
+	}
+}

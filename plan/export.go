@@ -41,6 +41,35 @@ type Export struct {
 	Notes           []string      `json:"notes"`
 	Caution         string        `json:"caution"`
 	RuleCaution     string        `json:"rule_caution,omitempty"`
+	// RecordReductions are the classes of routine records (measured plans
+	// only); SamplingCaution is set when there are any.
+	RecordReductions []ExportReduction `json:"record_reductions"`
+	SamplingCaution  string            `json:"sampling_caution,omitempty"`
+}
+
+// ExportReduction is one class of routine records. bytes_saved_per_day is
+// null when the record rate is unknown; bytes_saved_per_record is always
+// there.
+type ExportReduction struct {
+	ID                 string          `json:"id"`
+	Class              string          `json:"class"`
+	Condition          string          `json:"condition"`
+	Action             ReductionAction `json:"action"`
+	KeepOneIn          float64         `json:"keep_one_in"`
+	ShareRecords       float64         `json:"share_records"`
+	ShareBytes         float64         `json:"share_bytes"`
+	SavedPerDay        ExportSize      `json:"bytes_saved_per_day"`
+	SavedPerRecord     ExportSize      `json:"bytes_saved_per_record"`
+	BitsLost           float64         `json:"bits_lost_per_record"`
+	BitsPerClassRecord float64         `json:"bits_per_class_record"`
+	Ratio              float64         `json:"bits_per_byte_vs_stream,omitempty"`
+	Ignore             []string        `json:"ignored_fields,omitempty"`
+	Span               string          `json:"span,omitempty"`
+	Findings           int             `json:"findings_in_class"`
+	FindingExamples    []string        `json:"finding_examples"`
+	Warning            string          `json:"warning,omitempty"`
+	Pin                string          `json:"pin,omitempty"`
+	Applied            bool            `json:"in_exports"`
 }
 
 // ExportDeriv is one derived field: the fields it is rebuilt from and the
@@ -176,6 +205,24 @@ func (p *Plan) Export() *Export {
 		e.SavedPerDay = ExportSize{&r, &c}
 		rate := round(p.RecordsPerSecond)
 		e.RecordsPerSec = &rate
+	}
+	e.RecordReductions = []ExportReduction{}
+	for i := range p.Reductions {
+		r := &p.Reductions[i]
+		x := ExportReduction{ID: r.ID, Class: r.Class, Condition: r.Condition(), Action: r.Action,
+			KeepOneIn: round(r.KeepOneIn), ShareRecords: round(r.ShareRecords), ShareBytes: round(r.ShareBytes),
+			SavedPerRecord: size(r.Saved), BitsLost: round(r.BitsLostPerRecord), BitsPerClassRecord: round(r.BitsPerClassRecord),
+			Ratio: round(r.Ratio), Ignore: r.Ignore, Span: r.Span, Findings: r.Findings,
+			FindingExamples: append([]string{}, r.FindingExamples...), Warning: r.Warning(), Pin: r.Pin.String(), Applied: r.Applied()}
+		if p.RecordsPerSecond > 0 {
+			d := p.RecordsPerSecond * 86400
+			raw, c := math.Round(r.Saved.Raw*d), math.Round(r.Saved.Compressed*d)
+			x.SavedPerDay = ExportSize{&raw, &c}
+		}
+		e.RecordReductions = append(e.RecordReductions, x)
+	}
+	if len(p.Reductions) > 0 {
+		e.SamplingCaution = SamplingCaution
 	}
 	sort.Strings(e.Drop)
 	return e

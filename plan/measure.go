@@ -112,6 +112,7 @@ func (p *Plan) Measure(smp *Sample) error {
 		}
 		m.counts[f.Name] = map[string]int64{}
 	}
+	cls := newClasses(p, m.json)
 	var bl, al []byte
 	smp.each(func(line []byte) {
 		var ok bool
@@ -126,6 +127,7 @@ func (p *Plan) Measure(smp *Sample) error {
 		if !m.json {
 			m.count(bl)
 		}
+		cls.add(m.rec, len(bl)+1)
 	})
 	if meas.Records == 0 {
 		return fmt.Errorf("plan: none of the %d sample lines could be measured as %s records", smp.Len(), p.Format)
@@ -179,6 +181,16 @@ func (p *Plan) Measure(smp *Sample) error {
 		if f.Exact && f.Mismatches > 0 {
 			p.Lossless = false
 		}
+	}
+	idBits := 0.0
+	for _, name := range p.hints.ignore {
+		if f := p.Field(name); f != nil {
+			idBits += f.Entropy
+		}
+	}
+	p.Reductions = cls.reductions(m.before, size, idBits, meas.Paths)
+	for i := range p.Reductions {
+		p.Reductions[i].Pin = p.recordPins[p.Reductions[i].Class]
 	}
 	if meas.Reordered > 0 {
 		p.Notes = append(p.Notes, fmt.Sprintf("%d sample records disagree with the others on the order of their keys: "+
