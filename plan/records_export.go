@@ -205,7 +205,7 @@ func WriteJQRecords(w io.Writer, p *Plan) error {
 	b.WriteString(jqHelpers)
 	b.WriteString(`def bs_has($p): ($p | length) == 0 or (try (getpath($p[:-1]) | type == "object" and has($p[-1])) catch false);
 `)
-	b.WriteString("def bs_class:\n  ")
+	var arms []string
 	var collapse *Reduction
 	for i := range p.Reductions {
 		r := &p.Reductions[i]
@@ -216,9 +216,13 @@ func WriteJQRecords(w io.Writer, p *Plan) error {
 			collapse = r
 			continue
 		}
-		fmt.Fprintf(&b, "if %s then {id: %q, n: %d}\n  el", jqCond(r), r.ID, int(r.KeepOneIn))
+		arms = append(arms, fmt.Sprintf("%s then {id: %q, n: %d}", jqCond(r), r.ID, int(r.KeepOneIn)))
 	}
-	b.WriteString("se null end;\n")
+	if len(arms) == 0 {
+		b.WriteString("def bs_class: null;\n")
+	} else {
+		b.WriteString("def bs_class:\n  if " + strings.Join(arms, "\n  elif ") + "\n  else null end;\n")
+	}
 	minute := `(.seen / 1000 | floor)`
 	if tf := p.hints.timeField; tf != "" {
 		minute = `($r | bs_at(` + jqArray([]string{tf}) + `) | tostring | .[0:16])`

@@ -262,6 +262,9 @@ func (c *classes) judge(cands []*candidate) {
 		for _, r := range cd.members {
 			cd.bytes += c.bytes[r]
 		}
+		// Where the other fields carry nothing in the whole sample either,
+		// there is nothing to compare: not routine.
+		cd.ratio = 1
 		if ref > 0 && k > 0 {
 			cd.ratio = (in / (float64(b) / float64(k))) / (ref / (float64(total) / float64(m)))
 		}

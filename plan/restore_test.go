@@ -3,6 +3,7 @@ package plan
 import (
 	"bytes"
 	"compress/gzip"
+	"encoding/csv"
 	"encoding/json"
 	"io"
 	"os"
@@ -15,6 +16,7 @@ import (
 	"bitsift/ingest"
 	"bitsift/internal/datasets"
 	"bitsift/model"
+	"bitsift/sanitize"
 )
 
 // jqTool is the jq the round trips run with: the real program, not a
@@ -233,5 +235,67 @@ func TestTablesInJSON(t *testing.T) {
 	}
 	if len(e.Constants) != 1 || e.Constants[0].Field != "svc" || string(e.Constants[0].Value) != `"quayside"` {
 		t.Errorf("constants %+v", e.Constants)
+	}
+}
+
+// TestTablesCSV: the tables read back with encoding/csv, one row per
+// table row, and a value that a spreadsheet would run as a formula (the
+// OWASP CSV injection cases, from memory: = + - @) is neutralised, while
+// a plain negative number is not.
+func TestTablesCSV(t *testing.T) {
+	ls := lines(400, func(i int) string {
+		code := []string{"A", "B", "C", "D"}[i%4]
+		label := []string{"=HYPERLINK(\"x\")", "+1+2", "-7", "@sum"}[i%4]
+		return `{"code":"` + code + `","label":"` + strings.ReplaceAll(label, `"`, `\"`) + `","n":` + strings.Repeat("5", 1+i%7) + `}`
+	})
+	p := planLines(t, ls)
+	var b bytes.Buffer
+	if err := WriteTablesCSV(&b, p); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(&b).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := map[string]string{}
+	for _, r := range rows[1:] {
+		got[r[2]] = r[3]
+	}
+	want := map[string]string{"A": `'=HYPERLINK("x")`, "B": "'+1+2", "C": "-7", "D": "'@sum"}
+	if f := p.Field("label"); f == nil || f.Action != Derive {
+		t.Fatalf("label not derived: %+v", p.Fields)
+	}
+	for k, v := range want {
+		if got[k] != v {
+			t.Errorf("%s → %q, want %q (rows %q)", k, got[k], v, rows)
+		}
+	}
+}
+
+// TestTextWidth: the text plan fits 80 columns on the demo, the datasets
+// and a stream of long field names.
+func TestTextWidth(t *testing.T) {
+	long := lines(300, func(i int) string {
+		return `{"a_very_long_field_name_that_goes_on_and_on":"` + []string{"x", "y"}[i%2] +
+			`","another_quite_long_field_name_for_the_from_column":"` + []string{"p", "q"}[i%2] + `","n":` + strings.Repeat("3", 1+i%9) + `}`
+	})
+	for name, ls := range map[string][][]byte{"demo": demoLines(5_000), "long": long,
+		"rdp": gunzipLines(t, datasets.Path(t, "rdp.json.gz"))} {
+		p := planLines(t, ls)
+		var b strings.Builder
+		if err := WriteText(&b, p); err != nil {
+			t.Fatal(err)
+		}
+		for i, l := range strings.Split(b.String(), "\n") {
+			if w := sanitize.Width(l); w > TextWidth {
+				t.Errorf("%s line %d is %d wide: %s", name, i+1, w, l)
+			}
+		}
+		if !strings.Contains(b.String(), "Caution: dropping fields") {
+			t.Errorf("%s: no caution", name)
+		}
+		if len(p.Reductions) > 0 && !strings.Contains(b.String(), "Sampling and collapsing delete whole records") {
+			t.Errorf("%s: record reductions without the sampling caution", name)
+		}
 	}
 }

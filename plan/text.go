@@ -73,7 +73,7 @@ func WriteText(w io.Writer, p *Plan) error {
 		s := m.Saved()
 		fmt.Fprintf(b, "\nBytes per record       raw     zstd\n")
 		fmt.Fprintf(b, "  before          %8.1f %8.1f\n", m.Before.Raw, m.Before.Compressed)
-		fmt.Fprintf(b, "  after           %8.1f %8.1f   (tables and constants: %.2f raw, %.2f zstd)\n",
+		fmt.Fprintf(b, "  after           %8.1f %8.1f  (tables and constants: %.2f raw, %.2f zstd)\n",
 			m.After.Raw, m.After.Compressed, m.Tables.Raw, m.Tables.Compressed)
 		fmt.Fprintf(b, "  saved           %8.1f %8.1f   (%.0f%% raw, %.0f%% zstd)\n",
 			s.Raw, s.Compressed, pct(s.Raw, m.Before.Raw), pct(s.Compressed, m.Before.Compressed))
