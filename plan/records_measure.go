@@ -287,18 +287,12 @@ func (c *classes) reductions(before []byte, size func([]byte) float64, idBits fl
 	base := size(before)
 	cands := c.candidates()
 	c.judge(cands)
+	cands = c.sameRecords(cands)
+	// Most routine first: a cap on the classes offered keeps those.
 	sort.Slice(cands, func(a, b int) bool {
 		ca, cb := cands[a], cands[b]
-		if ca.bytes != cb.bytes {
-			return ca.bytes > cb.bytes
-		}
-		if len(ca.terms) != len(cb.terms) {
-			return len(ca.terms) < len(cb.terms)
-		}
-		// Of two fields that pick the same records, name the one with
-		// more values: route="/healthz" says more than upstream="local".
-		if da, db := len(c.texts[ca.terms[0][0]]), len(c.texts[cb.terms[0][0]]); da != db {
-			return da > db
+		if ca.ratio != cb.ratio {
+			return ca.ratio < cb.ratio
 		}
 		return c.fields[ca.terms[0][0]] < c.fields[cb.terms[0][0]]
 	})
@@ -360,6 +354,37 @@ func (c *classes) reductions(before []byte, size func([]byte) float64, idBits fl
 	}
 	for i := range out {
 		out[i].ID = fmt.Sprintf("r%d", i+1)
+	}
+	return out
+}
+
+// sameRecords keeps one candidate of those that pick the same records
+// (route="/healthz" and upstream="local" on the demo): named by the field
+// with more values, which says more, and judged by the lowest ratio among
+// them.
+func (c *classes) sameRecords(cands []*candidate) []*candidate {
+	type key struct{ n, bytes, first, last int }
+	best := map[key]*candidate{}
+	low := map[key]float64{}
+	var order []key
+	for _, cd := range cands {
+		k := key{len(cd.members), cd.bytes, cd.members[0], cd.members[len(cd.members)-1]}
+		b, ok := best[k]
+		if !ok {
+			best[k], low[k] = cd, cd.ratio
+			order = append(order, k)
+			continue
+		}
+		low[k] = min(low[k], cd.ratio)
+		da, db := len(c.texts[cd.terms[0][0]]), len(c.texts[b.terms[0][0]])
+		if da > db || da == db && c.fields[cd.terms[0][0]] < c.fields[b.terms[0][0]] {
+			best[k] = cd
+		}
+	}
+	out := make([]*candidate, 0, len(order))
+	for _, k := range order {
+		best[k].ratio = low[k]
+		out = append(out, best[k])
 	}
 	return out
 }
