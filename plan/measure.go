@@ -189,6 +189,9 @@ func (p *Plan) Measure(smp *Sample) error {
 		}
 	}
 	p.Reductions = cls.reductions(m.before, size, idBits, meas.Paths)
+	if meas.Records < MinReductionRecords {
+		p.Notes = append(p.Notes, fmt.Sprintf("record classes are judged on %d measured records or more; %d were measured", MinReductionRecords, meas.Records))
+	}
 	for i := range p.Reductions {
 		p.Reductions[i].Pin = p.recordPins[p.Reductions[i].Class]
 	}

@@ -36,6 +36,10 @@ const (
 	RoutineRatio = 0.75
 	// MinClassShare is the smallest share of records a class must hold.
 	MinClassShare = 0.01
+	// MinReductionRecords is the fewest measured records classes are
+	// judged on: a class of 1% then holds 50, enough for its entropies;
+	// over fewer, small classes look routine by chance.
+	MinReductionRecords = 5000
 	// minClassRecords is the fewest records a class must hold to be judged.
 	minClassRecords = 50
 	// KeepOneIn is the sampling rate offered.

@@ -276,7 +276,7 @@ func (c *classes) judge(cands []*candidate) {
 // and loses (idBits: the time and identifier fields' entropy, bits).
 func (c *classes) reductions(before []byte, size func([]byte) float64, idBits float64, paths map[string][][]string) []Reduction {
 	n := len(c.rows)
-	if n == 0 {
+	if n < MinReductionRecords {
 		return nil
 	}
 	why := c.findings()

@@ -336,8 +336,11 @@ func (v plannerView) measuredText() string {
 	if m.Measured.Mismatches > 0 {
 		t += st.Bad.Render(" · " + count(int64(m.Measured.Mismatches)) + " mismatches")
 	}
-	if v.measVer != v.ver || v.measuring {
+	switch {
+	case v.measVer != v.ver:
 		t = st.Muted.Render(t + " · before the last pin, measuring again…")
+	case v.measuring:
+		t = st.Muted.Render(t + " · measuring again…")
 	}
 	return t
 }

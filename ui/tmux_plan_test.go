@@ -18,6 +18,15 @@ func TestTmuxPlanRecords(t *testing.T) {
 	bin := buildBinary(t)
 	tt := startTmux(t, 120, 40, bin)
 	tt.waitFor("[1 Fields]", "rec/s")
+	// Record classes are judged on 5,000 measured records or more: let
+	// the window fill past that before the first measurement.
+	deadline := time.Now().Add(60 * time.Second)
+	for shownLines(t, tt.capture()) < 12_000 {
+		if time.Now().After(deadline) {
+			t.Fatalf("the demo never reached 12,000 lines:\n%s", tt.capture())
+		}
+		time.Sleep(200 * time.Millisecond)
+	}
 	tt.keys("5")
 	screen := tt.waitFor("[5 Plan]", `rec route="/healthz"`, "Caution: dropping fields", "Sampling deletes whole records")
 	moveTo := func(want string) {
