@@ -160,7 +160,7 @@ var (
 func TestOTelRecordsConfig(t *testing.T) {
 	// A stream with a routine class (polls), duplicates, and a value with
 	// a quote that OTTL must not be handed.
-	ls := lines(3000, func(i int) string {
+	ls := lines(6000, func(i int) string {
 		ts := fmt.Sprintf("2026-03-14T06:%02d:%02d.%03dZ", i/1000, (i/20)%60, i%1000)
 		switch {
 		case i%4 == 0:
@@ -240,7 +240,7 @@ func TestOTelRecordsConfig(t *testing.T) {
 // breaks. The class of polls must carry the warning and stay out of the
 // exports until pinned.
 func findingStream() [][]byte {
-	return lines(4000, func(i int) string {
+	return lines(6000, func(i int) string {
 		host := fmt.Sprintf("h%d", i%4)
 		zone := map[string]string{"h0": "z1", "h1": "z1", "h2": "z2", "h3": "z2"}[host]
 		ts := fmt.Sprintf("2026-03-14T06:%02d:%02d.%03dZ", i/2000, (i/40)%60, i%1000)
@@ -331,8 +331,8 @@ func TestJQRecords(t *testing.T) {
 	}
 	// Duplicates: the polls of findingStream repeat within a minute but
 	// for ts and id.
-	dl := lines(600, func(i int) string {
-		return fmt.Sprintf(`{"ts":"2026-03-14T06:%02d:%02d.000Z","id":"x%d","host":"h%d","msg":"same"}`, i/300, (i/5)%60, i, i%3)
+	dl := lines(6000, func(i int) string {
+		return fmt.Sprintf(`{"ts":"2026-03-14T06:%02d:%02d.000Z","id":"x%d","host":"h%d","msg":"same"}`, i/3000, (i/50)%60, i, i%3)
 	})
 	dp := planLines(t, dl)
 	var dup *Reduction
@@ -359,9 +359,9 @@ func TestJQRecords(t *testing.T) {
 			total += *r.Count
 		}
 	}
-	// 600 records, 2 minutes × 3 hosts: 6 kept, each with its count.
-	if len(dout) != 6 || total != 600 {
-		t.Errorf("collapsed to %d records counting %d (want 6 counting 600)", len(dout), total)
+	// 6,000 records, 2 minutes × 3 hosts: 6 kept, each with its count.
+	if len(dout) != 6 || total != 6000 {
+		t.Errorf("collapsed to %d records counting %d (want 6 counting 6000)", len(dout), total)
 	}
 	t.Logf("%s: keep 1 in %.3g, saved %.1f B raw per record", dup.Class, dup.KeepOneIn, dup.Saved.Raw)
 }
