@@ -1,10 +1,12 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 	"strings"
 
@@ -87,8 +89,8 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if c.emit != "" && !oneOf(c.emit, planEmits) {
 		return usage("plan: unknown --emit %q (use one of %s)", c.emit, strings.Join(planEmits, ", "))
 	}
-	if c.maxLoss < 0 {
-		return usage("plan: --max-loss must be 0 or more bits per record")
+	if !(c.maxLoss >= 0) || math.IsInf(c.maxLoss, 1) { // NaN fails every comparison
+		return usage("plan: --max-loss must be a number of bits per record, 0 or more")
 	}
 	cfg, err := c.config()
 	if err != nil {
@@ -103,47 +105,53 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if w := cfg.Model.Window; w.Kind == model.WindowRecords {
 		n = min(n, w.Records)
 	}
-	smp := plan.NewSample(n)
+	// Measuring needs the raw lines; with --redact none are kept (smp is
+	// nil), so the plan is then chosen from the figures alone.
+	smp := in.KeepRaw(n)
 	for _, p := range paths {
 		in.AddSource(p)
 	}
 	src := parse.NewFileSource(paths, cfg.MaxLine)
 	src.Stdin = std.In
-	// Measuring needs the raw lines; with --redact none may be kept, so
-	// the plan is then chosen from the figures alone.
-	redacting := cfg.Redact || len(cfg.RedactFields) > 0
-	var from parse.Source = &teeSource{Source: src, sample: smp}
-	if redacting {
-		from = src
-	}
-	readErr := in.ReadSource(ctx, from)
+	readErr := in.ReadSource(ctx, src)
 	src.Close()
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{})
-	smp.Keep(snap.Records)
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{})
+	if err != nil {
+		return err
+	}
+	if smp != nil {
+		smp.Keep(snap.Records)
+	}
 	pins, err := c.pins(snap)
 	if err != nil {
 		return err
 	}
 	if snap.Records == 0 {
-		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
+		return outcome(std, in, readErr, snap)
+	}
+	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != ""}
+	if smp != nil {
+		opts.Batch = smp.Len()
 	}
 	if c.emit != "" && !plan.Fits(c.emit, snap.Input.Format) {
 		return usage("plan: --emit %s cannot process %s records; the exports that fit this input: %s",
 			c.emit, snap.Input.Format, strings.Join(plan.EmitsFor(snap.Input.Format), ", "))
 	}
-	if redacting && (c.emit == plan.EmitJQRestore || c.emit == plan.EmitJQRecords || c.emit == plan.EmitOTelRecords || c.tables != "") {
+	if smp == nil && (c.emit == plan.EmitJQRestore || c.emit == plan.EmitJQRecords || c.emit == plan.EmitOTelRecords || c.tables != "") {
 		return usage("plan: --redact keeps no raw lines, so there are no tables or record classes to write (--emit jq-restore, jq-records, otel-records, --tables)")
 	}
-	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != "", Batch: smp.Len()}
 	var p *plan.Plan
-	if redacting {
+	if smp == nil {
 		p = plan.Choose(snap, opts)
 		p.Notes = append(p.Notes, "not measured and not verified: --redact keeps no raw lines, so the saving is the model's estimate")
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
 		return &ExitError{Code: ExitUnreadable, Err: err}
+	}
+	if err := ctx.Err(); err != nil {
+		return err // interrupted while measuring: nothing is written
 	}
 	write := func(w io.Writer) error {
 		switch {
@@ -166,15 +174,21 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	if c.tables != "" {
 		if err := plan.WriteFile(c.tables, func(w io.Writer) error { return plan.WriteTablesCSV(w, p) }); err != nil {
-			return &ExitError{Code: ExitUnreadable, Err: err}
+			return &ExitError{Code: ExitWrite, Err: err}
 		}
 	}
 	if c.out != "" {
 		if err := plan.WriteFile(c.out, write); err != nil {
-			return &ExitError{Code: ExitUnreadable, Err: err}
+			return &ExitError{Code: ExitWrite, Err: err}
 		}
-	} else if err := write(std.Out); err != nil {
+		return inputError(readErr, snap)
+	}
+	var out bytes.Buffer
+	if err := write(&out); err != nil {
 		return writeError(err)
+	}
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
 	}
 	return inputError(readErr, snap)
 }
@@ -219,27 +233,4 @@ func oneOf(v string, set []string) bool {
 		}
 	}
 	return false
-}
-
-// inputErrorOr is inputError, or alt when the input read cleanly.
-func inputErrorOr(readErr error, snap *model.Snapshot, alt error) error {
-	if err := inputError(readErr, snap); err != nil {
-		return err
-	}
-	return alt
-}
-
-// teeSource hands every line it passes on to the plan's sample too: the
-// model keeps no text for identifiers, the sample keeps the raw lines.
-type teeSource struct {
-	parse.Source
-	sample *plan.Sample
-}
-
-func (t *teeSource) Next(ctx context.Context) (parse.Line, error) {
-	l, err := t.Source.Next(ctx)
-	if err == nil && !l.TooLong {
-		t.sample.Add(l.Text)
-	}
-	return l, err
 }

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -23,6 +24,8 @@ type streamFlags struct {
 	redact       bool
 	redactFields []string
 	analyseTime  bool
+	redactKey    string
+	templates    []string
 }
 
 func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
@@ -33,7 +36,9 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.IntVar(&f.maxLine, "max-line", parse.DefaultMaxLine, "longest line in bytes; longer lines are rejected")
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
+	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
+	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return append(parse.Names(), "pattern"), cobra.ShellCompDirectiveNoFileComp
 	})
@@ -45,7 +50,13 @@ func (f *streamFlags) config() (ingest.Config, error) {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates}
+	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
+		return ingest.Config{}, err
+	}
+	if cfg.RedactKey != nil && len(cfg.RedactFields) == 0 {
+		cfg.Redact = true
+	}
 	if f.format != "" && f.format != "pattern" {
 		if _, err := parse.ByName(f.format); err != nil {
 			return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
@@ -65,6 +76,7 @@ type reportCmd struct {
 	live     followFlags
 	output   string
 	baseline string
+	prof     profileFlags
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -87,11 +99,18 @@ come for --idle, or it is interrupted; then it prints the report.`,
   bitsift report --baseline base.json tuesday.log`,
 		Args: cobra.MinimumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if isProf, err := profileInputs(args); err != nil || isProf {
+				if err != nil {
+					return err
+				}
+				return c.runProfiles(cmd, std, args)
+			}
 			return c.run(cmd.Context(), std, args)
 		},
 	}
 	c.register(cmd, "all")
 	c.live.register(cmd)
+	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
@@ -109,6 +128,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	if c.prof.out != "" {
+		cfg.Model.KeepText = true // identifiers are sketched from their text
+	}
 	in, err := ingest.New(cfg)
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
@@ -133,11 +155,49 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
+	if c.live.follow {
+		// An interrupt is how a follow ends: the report of what was read
+		// follows it.
+		ctx = context.WithoutCancel(ctx)
+	}
+	if c.prof.out != "" {
+		if err := writeLogProfile(in, cfg, paths, c.prof); err != nil {
+			return err
+		}
+	}
+	return writeReport(ctx, std, in, c.output, readErr)
+}
+
+// writeReport takes the final snapshot and writes the report whole, unless
+// ctx ends first; then the exit code says what the input was worth.
+func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error) error {
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
+	if err != nil {
+		return err
+	}
+	var out bytes.Buffer
+	if err := report.Write(&out, report.Build(snap), format); err != nil {
 		return writeError(err)
 	}
-	return inputError(readErr, snap)
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
+	}
+	return outcome(std, in, readErr, snap)
+}
+
+// runProfiles reports on profiles instead of logs: their counts added.
+func (c *reportCmd) runProfiles(cmd *cobra.Command, std IO, args []string) error {
+	if !validOutput(c.output) {
+		return usage("unknown output format %q (use one of %s)", c.output, strings.Join(report.Formats, ", "))
+	}
+	if err := unusedWithProfiles(cmd, "follow", "format", "pattern", "window", "redact", "redact-fields", "redact-key", "baseline", "analyse-time"); err != nil {
+		return err
+	}
+	p, err := mergedProfile(args)
+	if err != nil {
+		return err
+	}
+	return reportProfile(std, p, c.output, c.prof.out)
 }
 
 func validOutput(o string) bool {
@@ -159,12 +219,4 @@ func inputError(err error, snap *model.Snapshot) error {
 		code = ExitUnreadable
 	}
 	return &ExitError{Code: code, Err: err}
-}
-
-// writeError treats a closed pipe (bitsift report | head) as a quiet end.
-func writeError(err error) error {
-	if isBrokenPipe(err) {
-		return &ExitError{Code: ExitOK, Err: errQuiet}
-	}
-	return err
 }

@@ -1,185 +1,109 @@
 package ingest
 
 import (
+	"strings"
+
+	"bitsift/companion"
 	"bitsift/model"
 	"bitsift/parse"
 )
 
-// Companion fields are fields bitsift adds to each record beside the log's
-// own, for two kinds of field whose raw entropy says little:
-//
-//   - a number with many distinct values (a latency, a size) gets
-//     FIELD~log, its logarithmic bucket (see buckets.go), so that the
-//     field's spread has an entropy that means something;
-//   - free text (a message) gets FIELD~template, the text with its
-//     variable parts masked and merged (see template.go), so that
-//     H(msg~template | app) and the like are readable.
-//
-// The "~" marks the name as bitsift's; the model also knows them as
-// synthetic, and reports say so. Which fields get companions is decided
-// once, from the records of the detection sample, so that every record
-// from the first on has them.
-const (
-	BucketSuffix   = "~log"
-	TemplateSuffix = "~template"
-)
-
-// The companion rules, applied to the detection sample's records
-// (common practice: thresholds chosen for this tool, no published source).
-const (
-	// A numeric field needs this many distinct values in the sample: status
-	// codes and other small sets stay categorical.
-	minNumericDistinct = 32
-	// A text field needs this many records with it, at least half of its
-	// values with two spaces or more (three words: a timestamp such as
-	// "17/May/2015:10:05:03 +0000" is no message), and this many distinct
-	// values, at least one per textRecordsPerDistinct records. Fields named
-	// like timestamps (parse.IsTimeKey) never get templates.
-	minTextPresent         = 8
-	minTextDistinct        = 8
-	textRecordsPerDistinct = 8
-	// At most this many companions, as each costs pair tables.
-	maxCompanions = 16
-)
-
-type companionKind int
-
-const (
-	bucketCompanion companionKind = iota
-	templateCompanion
-)
-
-// companion is one field bitsift adds, made from the field source.
-type companion struct {
-	source, name string
-	kind         companionKind
-	buckets      buckets
-	templates    *templater
-}
-
-func (c *companion) method() string {
-	if c.kind == bucketCompanion {
-		return "log10 buckets, 4 per decade"
+// chooseCompanions chooses the companion fields (package companion) from
+// the records of a detection sample, declares them and warms their
+// template trees. A later sample (the next file of a multi-file read)
+// adds companions for fields the earlier ones did not choose.
+func (in *Ingester) chooseCompanions(sample []*parse.Record) {
+	more := companion.Choose(sample, companion.Options{Templates: in.cfg.Templates})
+	if in.redact != nil {
+		// Nothing may be derived from a value that is meant to be hidden:
+		// a template keeps a message's words, a bucket a number's range
+		// (and a hash has neither).
+		more.Keep(func(c companion.Companion) bool { return !in.redact.Redacting(c.Source()) })
 	}
-	return "message template: variable parts masked and merged"
-}
-
-// companions are the companion fields of a stream, in the order of their
-// sources' first appearance.
-type companions struct{ list []*companion }
-
-// fieldSample gathers what the rules need about one field.
-type fieldSample struct {
-	name            string
-	present, spaces int
-	numeric         bool // every non-null value is a number
-	distinct        map[string]struct{}
-	distinctNumbers int
-	distinctCapped  bool
-}
-
-// chooseCompanions applies the rules to the sample's records.
-func chooseCompanions(sample []*parse.Record) companions {
-	var order []*fieldSample
-	byName := map[string]*fieldSample{}
-	for _, rec := range sample {
-		for i := 0; i < rec.Len(); i++ {
-			k := rec.Key(i)
-			fs := byName[string(k)]
-			if fs == nil {
-				fs = &fieldSample{name: string(k), numeric: true, distinct: map[string]struct{}{}}
-				byName[fs.name] = fs
-				order = append(order, fs)
-			}
-			v := rec.Value(i)
-			fs.present++
-			if spaces(v) >= 2 {
-				fs.spaces++
-			}
-			null := isNull(v)
-			if _, ok := parseNumber(v); !ok && !null {
-				fs.numeric = false
-			}
-			if _, seen := fs.distinct[string(v)]; !seen && len(fs.distinct) < 4*minNumericDistinct {
-				fs.distinct[string(v)] = struct{}{}
-				if !null {
-					fs.distinctNumbers++
-				}
-			}
+	if in.comp.Len() == 0 {
+		in.comp = *more
+		in.comp.Declare(in.model)
+		if in.recordTemplates != nil {
+			in.comp.Record(in.recordTemplates)
 		}
+		if in.replayTemplates != nil {
+			in.comp.Replay(in.replayTemplates)
+		}
+	} else {
+		companion.Declare(in.model, in.comp.Merge(more))
 	}
-	var cs companions
-	for _, fs := range order {
-		if len(cs.list) == maxCompanions {
-			break
+	in.comp.Warm(sample)
+}
+
+// TemplateText returns the current text of the template whose id is value,
+// for the template companion named field ("msg~template").
+func (in *Ingester) TemplateText(field, value string) (string, bool) {
+	return in.comp.Text(field, value)
+}
+
+// Companions lists the companion fields in use.
+func (in *Ingester) Companions() []companion.Companion { return in.comp.List() }
+
+// labelTemplates shows each template id in a snapshot with its group's
+// current text ("#3 session opened for <*>"), in the values a person reads:
+// top values, the detail table, broken rules and surprising records. The
+// profile keeps the bare ids.
+func (in *Ingester) labelTemplates(s *model.Snapshot) {
+	if in.comp.Len() == 0 {
+		return
+	}
+	label := func(field, v string) string {
+		if !strings.HasSuffix(field, companion.TemplateSuffix) {
+			return v
 		}
-		var c *companion
-		switch {
-		case fs.numeric && fs.distinctNumbers >= minNumericDistinct:
-			c = &companion{source: fs.name, name: fs.name + BucketSuffix, kind: bucketCompanion}
-		case !parse.IsTimeKey(fs.name) && fs.present >= minTextPresent && 2*fs.spaces >= fs.present &&
-			len(fs.distinct) >= minTextDistinct && textRecordsPerDistinct*len(fs.distinct) >= fs.present:
-			c = &companion{source: fs.name, name: fs.name + TemplateSuffix, kind: templateCompanion, templates: newTemplater()}
-		default:
+		if t, ok := in.comp.Text(field, v); ok {
+			return v + " " + t
+		}
+		return v
+	}
+	for i := range s.Fields {
+		f := &s.Fields[i]
+		if !strings.HasSuffix(f.Name, companion.TemplateSuffix) {
 			continue
 		}
-		if byName[c.name] != nil {
-			continue // the log has a field of that name already: keep it
+		top := make([]model.ValueCount, len(f.Top))
+		for j, vc := range f.Top {
+			vc.Value = label(f.Name, vc.Value)
+			top[j] = vc
 		}
-		cs.list = append(cs.list, c)
+		f.Top = top
 	}
-	return cs
-}
-
-// apply appends the companion fields to rec.
-func (cs *companions) apply(rec *parse.Record) {
-	for _, c := range cs.list {
-		v, ok := rec.Get(c.source)
-		if !ok {
-			continue
-		}
-		switch c.kind {
-		case bucketCompanion:
-			rec.AddString(c.name, c.buckets.label(v))
-		case templateCompanion:
-			rec.AddKV(c.name, c.templates.template(v))
-		}
-	}
-}
-
-// warm runs the sample's messages through the template trees once before
-// their records get templates, so that the first records do not keep the
-// unmerged templates of a tree that has seen only them.
-func (cs *companions) warm(sample []*parse.Record) {
-	for _, c := range cs.list {
-		if c.kind != templateCompanion {
-			continue
-		}
-		for _, rec := range sample {
-			if v, ok := rec.Get(c.source); ok {
-				c.templates.template(v)
+	if d := s.Detail; d != nil {
+		for r := range d.Rows {
+			row := &d.Rows[r]
+			row.Given.Value = label(d.Given, row.Given.Value)
+			top := make([]model.ValueCount, len(row.Top))
+			for j, vc := range row.Top {
+				vc.Value = label(d.Field, vc.Value)
+				top[j] = vc
 			}
+			row.Top = top
+		}
+	}
+	if c := s.Changes; c != nil {
+		for b := range c.Broken {
+			br := &c.Broken[b]
+			ex := make([]model.RuleBreak, len(br.Examples))
+			for j, e := range br.Examples {
+				e.GivenValue = label(br.Given, e.GivenValue)
+				e.TargetValue = label(br.Target, e.TargetValue)
+				e.Expected = label(br.Target, e.Expected)
+				ex[j] = e
+			}
+			br.Examples = ex
+		}
+		for r := range c.Surprising {
+			rec := c.Surprising[r].Record
+			out := make(map[string]string, len(rec))
+			for k, v := range rec {
+				out[k] = label(k, v)
+			}
+			c.Surprising[r].Record = out
 		}
 	}
 }
-
-// declare marks the companions as synthetic in m.
-func (cs *companions) declare(m *model.Model) {
-	for _, c := range cs.list {
-		m.DeclareSynthetic(c.name, model.Synthetic{Source: c.source, Method: c.method()})
-	}
-}
-
-func spaces(b []byte) int {
-	n := 0
-	for _, c := range b {
-		if c == ' ' {
-			n++
-		}
-	}
-	return n
-}
-
-// isNull says whether v is a placeholder for "no number" ("-" or empty, as
-// access logs write a missing size).
-func isNull(v []byte) bool { return len(v) == 0 || len(v) == 1 && v[0] == '-' }

@@ -11,25 +11,6 @@ import (
 // looks at its requests.
 const maxBatch = 2048
 
-// batch is lines read and not yet taken, with their text in one buffer.
-type batch struct {
-	text  []byte
-	lines []batchLine
-}
-
-type batchLine struct {
-	start, end int
-	num        int64
-	source     string
-	tooLong    bool
-	err        error // a fault of the source, in order after the lines before it
-}
-
-func (b *batch) reset() {
-	b.text = b.text[:0]
-	b.lines = b.lines[:0]
-}
-
 // handoff passes lines from the reader goroutine to the owner: the reader
 // appends to cur under mu and pokes ready when cur stops being empty; the
 // owner swaps cur for an empty batch. One poke covers any number of lines,
@@ -73,9 +54,7 @@ func (h *handoff) put(l parse.Line, err error) bool {
 		return false
 	}
 	b := h.cur
-	start := len(b.text)
-	b.text = append(b.text, l.Text...)
-	b.lines = append(b.lines, batchLine{start: start, end: len(b.text), num: l.Num, source: l.Source, tooLong: l.TooLong, err: err})
+	b.add(l, err)
 	if len(b.lines) == 1 {
 		h.poke()
 	}

@@ -14,6 +14,8 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"bitsift/companion"
+	"bitsift/ingest/raw"
 	"bitsift/model"
 	"bitsift/parse"
 )
@@ -54,6 +56,14 @@ type Config struct {
 	// AnalyseTime analyses the timestamp field like any other; by default
 	// it is marked and left out of pairs (see model.Model.SetTimestamp).
 	AnalyseTime bool
+	// RedactKey, when set, is the redaction key (see NewRedactorWithKey)
+	// instead of one drawn at random for the run.
+	RedactKey []byte
+	// Templates names fields that get a FIELD~template companion whatever
+	// the sample says (--template FIELD).
+	Templates []string
+	// Observer, when set, sees what becomes of every line (annotate.go).
+	Observer Observer
 }
 
 // Ingester turns lines into model records.
@@ -66,11 +76,17 @@ type Ingester struct {
 	rec    parse.Record
 	times  parse.TimeFinder
 	redact *Redactor // nil: values are kept as they are
-	comp   companions
+	comp   companion.Set
+	det    detectState // detect.go
+	// recordTemplates and replayTemplates: see annotate.go.
+	recordTemplates, replayTemplates *companion.Recording
 	// timeMarked: the timestamp field found has been marked in the model.
 	timeMarked bool
 
-	lastSource string // the input of the last line Take saw
+	lastSource string // the input of the last line taken
+	// raw keeps the newest raw lines when asked (KeepRaw); nil under
+	// --redact.
+	raw *raw.Lines
 
 	// Until started, lines wait in pending: the format is detected from
 	// them and the companions chosen from their records.
@@ -80,6 +96,7 @@ type Ingester struct {
 	lastNum  int64
 
 	input model.Input
+	held  heldRecords // a parsed batch's records, for the model (batch.go)
 }
 
 type pendingLine struct {
@@ -96,7 +113,7 @@ func New(cfg Config) (*Ingester, error) {
 	in := &Ingester{cfg: cfg, model: model.New(cfg.Model)}
 	in.times.Now = cfg.Clock
 	if cfg.Redact || len(cfg.RedactFields) > 0 {
-		r, err := NewRedactor(cfg.RedactFields)
+		r, err := newRedactorFor(cfg)
 		if err != nil {
 			return nil, err
 		}
@@ -141,6 +158,8 @@ func (in *Ingester) Model() *model.Model { return in.model }
 // be reused by the caller after Line returns.
 func (in *Ingester) Line(line []byte, num int64, source string) {
 	in.input.Lines++
+	in.observeLine(num, source)
+	in.keepRaw(line, num, source, false)
 	if !in.started {
 		in.pending = append(in.pending, pendingLine{bytes.Clone(line), num, source})
 		if len(bytes.TrimSpace(line)) > 0 {
@@ -154,18 +173,38 @@ func (in *Ingester) Line(line []byte, num int64, source string) {
 		return
 	}
 	if in.read(line, num, source) {
-		in.add(num)
+		in.add(num, source)
 	}
 }
 
-// Reject counts a line that could not even be read as a line (too long).
-func (in *Ingester) Reject(num int64, source, reason string) {
-	in.input.Lines++
-	in.reject(num, source, reason, nil)
+// KeepRaw makes the Ingester keep the newest n raw lines it takes from
+// now on, with their sources and line numbers, and returns them (see
+// raw.Lines; only the owner goroutine may read them, a copy elsewhere).
+// Under --redact it keeps none and returns nil: no raw line may be kept
+// then, and this is the one place that is decided.
+func (in *Ingester) KeepRaw(n int) *raw.Lines {
+	if in.redact == nil && n > 0 {
+		in.raw = raw.New(n)
+	}
+	return in.raw
+}
+
+// Raw is the raw lines kept (KeepRaw), nil when none are.
+func (in *Ingester) Raw() *raw.Lines { return in.raw }
+
+// keepRaw keeps a line's text, if raw lines are kept; lines over
+// --max-line are not.
+func (in *Ingester) keepRaw(text []byte, num int64, source string, tooLong bool) {
+	if in.raw != nil && !tooLong {
+		in.raw.Put(source, num, text)
+	}
 }
 
 func (in *Ingester) reject(num int64, source, reason string, text []byte) {
 	in.input.Rejected++
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Rejected(num, source, reason)
+	}
 	if in.redact != nil {
 		text = nil // a rejected line may hold the very values being hidden
 	}
@@ -185,8 +224,8 @@ func excerpt(b []byte) string {
 	return strings.ToValidUTF8(string(b), string(utf8.RuneError))
 }
 
-// Fault records a read error that ended an input early.
-func (in *Ingester) Fault(source string, err error) {
+// fault records a read error that ended an input early.
+func (in *Ingester) fault(source string, err error) {
 	msg := err.Error()
 	if source != "" {
 		msg = source + ": " + msg
@@ -199,25 +238,28 @@ func (in *Ingester) Fault(source string, err error) {
 // into the model.
 func (in *Ingester) start() {
 	in.started = true
+	texts := make([][]byte, len(in.pending))
+	for i, p := range in.pending {
+		texts[i] = p.text
+	}
+	in.checkForced(texts)
 	if in.format == nil {
-		sample := make([][]byte, len(in.pending))
-		for i, p := range in.pending {
-			sample[i] = p.text
-		}
-		d, err := parse.Detect(sample)
+		d, err := parse.Detect(in.detectionSample(texts))
 		if err != nil || d.Confidence < MinConfidence {
 			// Nothing recognisable: every line is rejected with that
 			// reason, so nothing vanishes unexplained.
 			d.Format, d.Confidence = unknownFormat{}, 0
 		}
 		in.setFormat(d.Format, d.Confidence)
+		in.formatChosen()
 	}
 	pending := in.pending
 	in.pending = nil
 	type sampled struct {
-		rec  parse.Record
-		num  int64
-		time int64
+		rec    parse.Record
+		num    int64
+		time   int64
+		source string
 	}
 	var recs []sampled
 	for i, p := range pending {
@@ -226,14 +268,14 @@ func (in *Ingester) start() {
 			// but into the sample).
 			for in.rec.Reset(); in.joiner.Flush(&in.rec); in.rec.Reset() {
 				in.input.Parts--
-				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime()})
+				recs = append(recs, sampled{num: pending[i-1].num, time: in.recTime(), source: pending[i-1].source})
 				recs[len(recs)-1].rec.CopyFrom(&in.rec)
 			}
 		}
 		if !in.read(p.text, p.num, p.source) {
 			continue
 		}
-		recs = append(recs, sampled{num: p.num, time: in.recTime()})
+		recs = append(recs, sampled{num: p.num, time: in.recTime(), source: p.source})
 		recs[len(recs)-1].rec.CopyFrom(&in.rec)
 	}
 	if !in.cfg.NoCompanions {
@@ -241,12 +283,18 @@ func (in *Ingester) start() {
 		for i := range recs {
 			sample[i] = &recs[i].rec
 		}
-		in.comp = chooseCompanions(sample)
-		in.comp.declare(in.model)
-		in.comp.warm(sample)
+		if len(pending) > 0 {
+			sample = append(sample, in.spreadRecords(pending[0].source)...)
+		}
+		in.chooseCompanions(sample)
+	}
+	if in.redact != nil {
+		for i := range recs {
+			in.redact.Observe(&recs[i].rec)
+		}
 	}
 	for i := range recs {
-		in.commit(&recs[i].rec, recs[i].num, recs[i].time)
+		in.commit(&recs[i].rec, recs[i].num, recs[i].time, recs[i].source)
 	}
 }
 
@@ -254,20 +302,34 @@ func (in *Ingester) start() {
 // part when it is one; it reports whether in.rec holds a record.
 func (in *Ingester) read(line []byte, num int64, source string) bool {
 	in.lastNum = num
-	if len(bytes.TrimSpace(line)) == 0 {
-		in.reject(num, source, "blank line", nil)
-		return false
-	}
-	in.rec.Reset()
-	err := in.format.Parse(line, &in.rec)
+	kind, reason := parseLine(in.format, line, false, &in.rec)
+	ok := in.account(kind, reason, num, source, line)
 	switch {
-	case err == nil:
-		return true
-	case errors.Is(err, parse.ErrPart):
-		in.input.Parts++
-		return false
+	case ok:
+		in.accepted()
+	case kind != linePart && reason != "blank line":
+		in.rejected(line)
 	}
-	in.reject(num, source, err.Error(), line)
+	return ok
+}
+
+// account counts a line parsed as kind (rejected with reason, or a part)
+// and says whether it is a record.
+func (in *Ingester) account(kind lineKind, reason string, num int64, source string, text []byte) bool {
+	switch kind {
+	case lineRecord:
+		return true
+	case linePart:
+		in.input.Parts++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Part(num, source)
+		}
+	default:
+		if reason == "blank line" || reason == reasonTooLong {
+			text = nil
+		}
+		in.reject(num, source, reason, text)
+	}
 	return false
 }
 
@@ -293,19 +355,29 @@ func (in *Ingester) markTime() {
 }
 
 // add takes the record in in.rec, read from line num, into the model.
-func (in *Ingester) add(num int64) {
-	in.commit(&in.rec, num, in.recTime())
+func (in *Ingester) add(num int64, source string) {
+	in.commit(&in.rec, num, in.recTime(), source)
 }
 
-// commit adds the companions to a parsed record, redacts it, and takes it
-// into the model.
-func (in *Ingester) commit(rec *parse.Record, num, t int64) {
-	in.comp.apply(rec)
+// commit prepares a parsed record and takes it into the model.
+func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
+	in.prepare(rec, num, t, source)
+	in.model.Add(rec, num, t)
+}
+
+// prepare adds the companions to a parsed record, redacts it, and shows it
+// to the Observer (which does not read the model, so a batch's records
+// may be shown before the model takes them).
+func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
+	in.comp.Apply(rec)
 	if in.redact != nil {
-		// After the companions, so that templates are hashed too.
+		// After the companions, which are made only from fields that are
+		// not redacted (chooseCompanions).
 		in.redact.Apply(rec)
 	}
-	in.model.Add(rec, num, t)
+	if in.cfg.Observer != nil {
+		in.cfg.Observer.Record(rec, num, source, t)
+	}
 }
 
 // endSource closes records left open at the end of a source (CRI partial
@@ -321,7 +393,7 @@ func (in *Ingester) endSource() {
 			return
 		}
 		in.input.Parts--
-		in.add(in.lastNum)
+		in.add(in.lastNum, in.lastSource)
 	}
 }
 
@@ -340,38 +412,63 @@ func (in *Ingester) Flush() {
 
 // Snapshot takes a snapshot of the model with the input accounting.
 func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
-	s := in.model.Snapshot(opt)
+	s, _ := in.SnapshotContext(context.Background(), opt)
+	return s
+}
+
+// SnapshotContext is Snapshot, given up when ctx is done (see
+// model.Model.SnapshotContext): the error is then ctx's.
+func (in *Ingester) SnapshotContext(ctx context.Context, opt model.SnapshotOptions) (*model.Snapshot, error) {
+	s, err := in.model.SnapshotContext(ctx, opt)
+	if err != nil {
+		return nil, err
+	}
+	in.labelTemplates(s)
 	s.Input = in.input
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
 	s.Input.RejectedExamples = append([]model.Rejection(nil), in.input.RejectedExamples...)
 	s.Input.Faults = append([]string(nil), in.input.Faults...)
 	s.Input.Events = append([]parse.SourceEvent(nil), in.input.Events...)
 	s.Input.TimeField, s.Input.TimeFormat = in.times.Key(), in.times.Format()
-	return s
+	return s, nil
 }
 
 // TimeKey is the timestamp field found in the stream, "" if none.
 func (in *Ingester) TimeKey() string { return in.times.Key() }
 
-// Take takes one line from a Source.
-func (in *Ingester) Take(l parse.Line) {
-	if l.Source != in.lastSource {
-		// A record split over lines does not run on into the next input.
-		if in.started && in.lastSource != "" {
-			in.endSource()
-		}
-		in.lastSource = l.Source
-	}
+// take takes one line from a Source.
+func (in *Ingester) take(l parse.Line) {
+	in.enter(l.Source)
 	if l.TooLong {
-		in.Reject(l.Num, l.Source, "line longer than --max-line")
+		in.input.Lines++
+		in.observeLine(l.Num, l.Source)
+		in.reject(l.Num, l.Source, reasonTooLong, nil)
 		return
 	}
 	in.Line(l.Text, l.Num, l.Source)
 }
 
-// SetEvents sets the source events the snapshots list (a copy is kept):
+// reasonTooLong is the rejection of a line over --max-line.
+const reasonTooLong = "line longer than --max-line"
+
+// enter notes that lines now come from source: a record split over lines
+// does not run on into the next input.
+func (in *Ingester) enter(source string) {
+	if source != in.lastSource {
+		if !in.started && in.det.perFile && len(in.pending) > 0 {
+			in.start() // the last file was shorter than the sample
+		}
+		if in.started && in.lastSource != "" {
+			in.endSource()
+			in.nextFile()
+		}
+		in.lastSource = source
+	}
+}
+
+// setEvents sets the source events the snapshots list (a copy is kept):
 // the owner of the source passes src.Status().Events.
-func (in *Ingester) SetEvents(events []parse.SourceEvent) {
+func (in *Ingester) setEvents(events []parse.SourceEvent) {
 	in.input.Events = append(in.input.Events[:0], events...)
 }
 
@@ -395,7 +492,7 @@ func (in *Ingester) ReadSource(ctx context.Context, src parse.Source) error {
 		}
 	}
 	in.Flush()
-	in.SetEvents(src.Status().Events)
+	in.setEvents(src.Status().Events)
 	if err != errDone {
 		return err // ctx is done
 	}
@@ -411,14 +508,14 @@ func (in *Ingester) readLines(ctx context.Context, src parse.Source, handOff fun
 		l, err := src.Next(ctx)
 		switch {
 		case err == nil:
-			in.Take(l)
+			in.take(l)
 			continue
 		case errors.Is(err, io.EOF):
 			return first, errDone
 		case ctx.Err() != nil:
 			return first, ctx.Err()
 		}
-		in.Fault("", err)
+		in.fault("", err)
 		if first == nil {
 			first = err
 		}
@@ -433,6 +530,7 @@ var errDone = errors.New("source ended")
 // or zstd. It goes on past a file that fails, and returns the first fault.
 func (in *Ingester) ReadFiles(ctx context.Context, paths []string) error {
 	in.input.Sources = append(in.input.Sources, paths...)
+	in.prepareFiles(paths)
 	src := parse.NewFileSource(paths, in.cfg.MaxLine)
 	src.Stdin = in.cfg.Stdin
 	defer src.Close()

@@ -86,7 +86,7 @@ func TestCompanions(t *testing.T) {
 			t.Errorf("unexpected companion %s", n)
 		}
 	}
-	if f := s.Fields[s.Index("msg~template")]; f.Distinct != 1 || f.Top[0].Value != "mister <num> on in zone <*>" {
+	if f := s.Fields[s.Index("msg~template")]; f.Distinct != 1 || f.Top[0].Value != "#1 mister <num> on in zone <*>" {
 		t.Errorf("templates %+v", f.Top)
 	}
 	if f := s.Fields[s.Index("latency_ms")]; f.Synthetic != nil {

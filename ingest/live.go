@@ -62,6 +62,9 @@ const (
 // reader to the owner in batches (see handoff), never one message per line;
 // a request is answered between two runs of at most chunkLines lines.
 type Live struct {
+	// ctx ends with the Live: a snapshot being taken then is given up,
+	// so that Stop never waits for a deep analysis.
+	ctx context.Context
 	in  *Ingester
 	src parse.Source
 	h   *handoff
@@ -77,16 +80,14 @@ type Live struct {
 	ended bool
 	err   error
 	rates []rateSample
-	tap   func(line []byte)
 }
 
 // LiveOptions add to what a Live does.
 type LiveOptions struct {
-	// Tap, when set, is given the text of every line read (but lines
-	// over --max-line) on the owner goroutine, before the Ingester takes
-	// it; it must not keep the slice. A screen keeps raw lines with it
-	// (the plan sample), read back with Visit.
-	Tap func(line []byte)
+	// RawLines, when above 0, has the Ingester keep the newest RawLines
+	// raw lines (Ingester.KeepRaw: none under --redact), read back on the
+	// owner goroutine with Visit.
+	RawLines int
 }
 
 type frameReq struct {
@@ -118,9 +119,12 @@ func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt Live
 		visits:    make(chan func()),
 		cancel:    cancel,
 		done:      make(chan struct{}),
-		tap:       opt.Tap,
 	}
 	in.AddSource(src.Status().Name)
+	l.ctx = ctx
+	if opt.RawLines > 0 {
+		in.KeepRaw(opt.RawLines)
+	}
 	go l.read(ctx)
 	go l.run(ctx)
 	return l
@@ -183,23 +187,19 @@ func (l *Live) setBaseline(b BaselineChoice) {
 }
 
 func (l *Live) takeBatch(b *batch) {
-	for i, bl := range b.lines {
-		if i%chunkLines == chunkLines-1 {
-			l.serve()
-		}
-		if bl.err != nil {
-			l.in.Fault("", bl.err)
-			if l.err == nil {
-				l.err = bl.err
-			}
-			continue
-		}
-		text := b.text[bl.start:bl.end]
-		if l.tap != nil && !bl.tooLong {
-			l.tap(text)
-		}
-		l.in.Take(parse.Line{Text: text, Num: bl.num, Source: bl.source, TooLong: bl.tooLong})
+	if err := l.in.takeBatch(b, l.serveUnlessStopping); err != nil && l.err == nil {
+		l.err = err
 	}
+}
+
+// serveUnlessStopping serves between runs of lines, and says to stop
+// taking them once the Live is stopping: nobody will read the figures.
+func (l *Live) serveUnlessStopping() bool {
+	if l.ctx.Err() != nil {
+		return false
+	}
+	l.serve()
+	return true
 }
 
 // serve answers the requests already waiting, without waiting for any.
@@ -233,8 +233,11 @@ func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	status := l.src.Status()
 	// The source's events (rotations, truncations, gaps) go into the
 	// input accounting, so that the snapshot lists them as a report does.
-	l.in.SetEvents(status.Events)
-	snap := l.in.Snapshot(opt)
+	l.in.setEvents(status.Events)
+	snap, err := l.in.SnapshotContext(l.ctx, opt)
+	if err != nil {
+		return nil // stopping: Frame's caller gets ErrStopped
+	}
 	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
 		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
 	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
@@ -272,6 +275,9 @@ func (l *Live) Frame(ctx context.Context, opt model.SnapshotOptions) (*Frame, er
 	}
 	select {
 	case f := <-r.reply:
+		if f == nil {
+			return nil, ErrStopped
+		}
 		return f, nil
 	case <-ctx.Done():
 		return nil, ctx.Err()

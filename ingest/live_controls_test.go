@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"bitsift/demo"
+	"bitsift/ingest/raw"
 	"bitsift/model"
 	"bitsift/parse"
 )
@@ -44,7 +45,7 @@ func frameWhen(t *testing.T, l *Live, opt model.SnapshotOptions, ok func(*Frame)
 
 // TestLiveControls: the source's events reach the snapshot's input
 // accounting; a pinned baseline survives a window change; every line
-// passes the tap, read back on the owner goroutine.
+// is kept raw with its number, read back on the owner goroutine.
 func TestLiveControls(t *testing.T) {
 	in, err := New(Config{})
 	if err != nil {
@@ -52,9 +53,10 @@ func TestLiveControls(t *testing.T) {
 	}
 	const n = 20_000
 	ev := parse.SourceEvent{Time: time.Unix(1, 0), Kind: "rotated", Detail: "a → a.1"}
-	var tapped, taken int
+	var taken int
+	var newest []raw.Line
 	l := StartLiveWith(context.Background(), in, &eventSource{Source: demo.NewSource(2, n, 0), ev: ev},
-		LiveOptions{Tap: func([]byte) { tapped++ }})
+		LiveOptions{RawLines: n})
 	defer l.Stop()
 	f := waitEnded(t, l)
 	if len(f.Snap.Input.Events) != 1 || f.Snap.Input.Events[0] != ev {
@@ -77,11 +79,11 @@ func TestLiveControls(t *testing.T) {
 	l.SetBaseline(Rolling)
 	frameWhen(t, l, model.SnapshotOptions{}, func(f *Frame) bool { return f.Baseline == model.BaselineRolling })
 
-	if err := l.Visit(context.Background(), func() { taken = tapped }); err != nil {
+	if err := l.Visit(context.Background(), func() { taken, newest = in.Raw().Len(), in.Raw().Newest(1) }); err != nil {
 		t.Fatal(err)
 	}
-	if taken != n {
-		t.Errorf("the tap saw %d lines, want all %d", taken, n)
+	if taken != n || len(newest) != 1 || newest[0].Num != n {
+		t.Errorf("%d raw lines kept, the newest %+v; want all %d, the last numbered %d", taken, newest, n, n)
 	}
 }
 

@@ -1,7 +1,6 @@
 package ingest
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"io"
@@ -30,28 +29,6 @@ const (
 	batchBytes = 1 << 20 // text per batch, at most (a longer line is a batch of its own)
 )
 
-// lineBatch is a run of consecutive lines and, once a worker is done with it,
-// their parse results. Batches are recycled.
-type lineBatch struct {
-	text  []byte
-	lines []parsedLine
-	recs  []parse.Record
-	fault error // a read fault after the lines, to be recorded in order
-	ready chan struct{}
-}
-
-type parsedLine struct {
-	start, end int
-	num        int64
-	source     string
-	tooLong    bool
-	// results
-	blank   bool
-	reason  string // "" for a record
-	t       int64
-	hasTime bool
-}
-
 // parallelOK says whether src can be read by the pipeline: a source of
 // files read once (a follower must hand each line over as it comes, not
 // when a batch fills), on more than one core.
@@ -62,7 +39,7 @@ func parallelOK(src parse.Source) bool {
 
 // settled says whether the remaining lines can go to the pipeline.
 func (in *Ingester) settled() bool {
-	return in.started && in.format != nil && parallelFormats[in.format.Name()] &&
+	return in.started && in.format != nil && parallelFormats[in.format.Name()] && !in.det.perFile &&
 		(in.times.Key() != "" || in.model.Seen() > timeFinderTries)
 }
 
@@ -75,12 +52,12 @@ const timeFinderTries = 101
 // first fault, io.EOF at a clean end, or ctx.Err().
 func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 	workers := runtime.GOMAXPROCS(0)
-	free := make(chan *lineBatch, 2*workers+2)
+	free := make(chan *batch, 2*workers+2)
 	for range cap(free) {
-		free <- &lineBatch{ready: make(chan struct{}, 1)}
+		free <- &batch{ready: make(chan struct{}, 1)}
 	}
-	work := make(chan *lineBatch, cap(free))
-	order := make(chan *lineBatch, cap(free))
+	work := make(chan *batch, cap(free))
+	order := make(chan *batch, cap(free))
 
 	go func() { // reader
 		defer close(order)
@@ -99,17 +76,16 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 				if len(b.lines) > 0 && (len(b.lines) == batchLines || len(b.text)+len(l.Text) > batchBytes) {
 					send()
 				}
-				s := len(b.text)
-				b.text = append(b.text, l.Text...)
-				b.lines = append(b.lines, parsedLine{start: s, end: len(b.text), num: l.Num, source: l.Source, tooLong: l.TooLong})
+				b.add(l, nil)
 				continue
 			}
-			b.fault = err
 			if errors.Is(err, io.EOF) || ctx.Err() != nil {
+				b.end = err
 				work <- b
 				order <- b
 				return
 			}
+			b.add(parse.Line{}, err) // a fault, recorded in order
 			send()
 		}
 	}()
@@ -127,28 +103,20 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 		}()
 	}
 
-	var first error
+	var first, end error
 	for b := range order {
 		<-b.ready
-		in.takeBatch(b)
-		if b.fault != nil {
-			switch {
-			case errors.Is(b.fault, io.EOF), ctx.Err() != nil:
-				if first == nil {
-					first = b.fault
-					if ctx.Err() != nil {
-						first = ctx.Err()
-					}
-				}
-			default:
-				in.Fault("", b.fault)
-				if first == nil {
-					first = b.fault
-				}
-			}
+		if err := in.takeBatch(b, nil); first == nil {
+			first = err
 		}
-		b.text, b.lines, b.fault = b.text[:0], b.lines[:0], nil
+		if b.end != nil && end == nil {
+			end = b.end
+		}
+		b.reset()
 		free <- b
+	}
+	if first == nil && ctx.Err() == nil {
+		first = end
 	}
 	if ctx.Err() != nil {
 		return ctx.Err()
@@ -157,55 +125,4 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 		first = io.EOF
 	}
 	return first
-}
-
-// parseBatch parses every line of b, as Ingester.parse does.
-func parseBatch(b *lineBatch, f parse.Format, times *parse.TimeFinder) {
-	for len(b.recs) < len(b.lines) {
-		b.recs = append(b.recs, parse.Record{})
-	}
-	for i := range b.lines {
-		l := &b.lines[i]
-		l.blank, l.reason, l.hasTime = false, "", false
-		if l.tooLong {
-			continue
-		}
-		text := b.text[l.start:l.end]
-		if len(bytes.TrimSpace(text)) == 0 {
-			l.blank = true
-			continue
-		}
-		rec := &b.recs[i]
-		rec.Reset()
-		if err := f.Parse(text, rec); err != nil {
-			l.reason = err.Error()
-			continue
-		}
-		l.t, l.hasTime = times.Find(rec)
-	}
-}
-
-// takeBatch does the accounting of a parsed batch and feeds its records to
-// the model, in order.
-func (in *Ingester) takeBatch(b *lineBatch) {
-	for i := range b.lines {
-		l := &b.lines[i]
-		in.input.Lines++
-		switch {
-		case l.tooLong:
-			in.reject(l.num, l.source, "line longer than --max-line", nil)
-		case l.blank:
-			in.reject(l.num, l.source, "blank line", nil)
-		case l.reason != "":
-			in.reject(l.num, l.source, l.reason, b.text[l.start:l.end])
-		default:
-			t := l.t
-			if !l.hasTime {
-				t = in.cfg.Clock().UnixNano()
-			} else {
-				in.markTime()
-			}
-			in.commit(&b.recs[i], l.num, t)
-		}
-	}
 }

@@ -19,6 +19,7 @@ import (
 // anywhere, so hashes cannot be matched across runs.
 type Redactor struct {
 	fields map[string]bool // nil: every field
+	names  *names          // every field: names are redacted too
 	mac    hash.Hash
 	sum    []byte
 	out    []byte
@@ -40,8 +41,33 @@ func NewRedactor(fields []string) (*Redactor, error) {
 		for _, f := range fields {
 			r.fields[f] = true
 		}
+	} else {
+		r.names = newNames()
 	}
 	return r, nil
+}
+
+// hash gives the keyed hash of v as shown: "~" and 16 base32 characters.
+func (r *Redactor) hash(v []byte) []byte {
+	r.mac.Reset()
+	r.mac.Write(v)
+	r.sum = r.mac.Sum(r.sum[:0])
+	r.out = b32.AppendEncode(append(r.out[:0], '~'), r.sum[:10])
+	return r.out
+}
+
+func (r *Redactor) hashString(s string) string { return string(r.hash([]byte(s))) }
+
+// Observe counts the keys of a record of the detection sample before any
+// record is redacted, so that an object keyed by data in the sample has
+// every key hashed from the first record on.
+func (r *Redactor) Observe(rec *parse.Record) {
+	if r.names == nil {
+		return
+	}
+	for i := 0; i < rec.Len(); i++ {
+		r.names.observe(string(rec.Key(i)))
+	}
 }
 
 // Apply rewrites rec in place, hashing the values of the redacted fields.
@@ -53,12 +79,10 @@ func (r *Redactor) Apply(rec *parse.Record) {
 			r.rec.Add(k, v)
 			continue
 		}
-		r.mac.Reset()
-		r.mac.Write(v)
-		r.sum = r.mac.Sum(r.sum[:0])
-		r.out = append(r.out[:0], '~')
-		r.out = b32.AppendEncode(r.out, r.sum[:10])
-		r.rec.Add(k, r.out)
+		if r.names != nil {
+			k = []byte(r.names.redact(string(k), r.hashString))
+		}
+		r.rec.Add(k, r.hash(v))
 	}
 	rec.CopyFrom(&r.rec)
 }

@@ -44,6 +44,7 @@ const (
 	detMaxTriple     = 10
 	detMaxWork       = 60_000_000
 	detDenseCells    = 1 << 20
+	detKeptColumns   = 64
 )
 
 // Determinant is a minimal set of fields that together determine Target.
@@ -74,7 +75,9 @@ type detSearch struct {
 	touch  []int32
 	dense  []int32
 	lookup []int32
-	cols   map[int][]uint32
+	cols   map[int][]uint32 // the candidates' columns
+	isCand map[int]bool
+	tcol   []uint32 // scratch column of a target
 	fHists map[int]countHist
 	// lo is the window position of the first record searched and n the
 	// number searched (see DeepMaxRecords); hs caches H(F) over them when
@@ -105,7 +108,10 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 		cands = cands[:detMaxCandidates]
 	}
 	d := &detSearch{m: m, s: s, found: map[int][][]int{}, fHists: map[int]countHist{}, cols: map[int][]uint32{},
-		lo: m.st.n - n, n: n, hs: map[int]float64{}}
+		isCand: map[int]bool{}, lo: m.st.n - n, n: n, hs: map[int]float64{}}
+	for _, c := range cands {
+		d.isCand[c] = true
+	}
 	if len(targets) == 0 || len(cands) < 2 {
 		return []Determinant{}, false
 	}
@@ -215,6 +221,7 @@ func (m *Model) determinants(s *Snapshot) ([]Determinant, bool) {
 	if d.out == nil {
 		d.out = []Determinant{}
 	}
+	m.lastDetWork = d.work
 	return d.out, d.cut
 }
 
@@ -302,6 +309,7 @@ func (d *detSearch) partitionBy(base *partition, a, b int) *partition {
 		left, right = right, len(d.m.fields[b].counts)+1
 	}
 	if left*right <= detDenseCells {
+		d.spend(left * right) // clearing the lookup is work too
 		if cap(d.lookup) < left*right {
 			d.lookup = make([]int32, left*right)
 		}
@@ -370,26 +378,37 @@ func (p *partition) sort() {
 	}
 }
 
+// spend counts w more work, done or about to be done, and says whether
+// the search is past its cap (then nothing more is counted: nothing more
+// is done).
 func (d *detSearch) spend(w int) bool {
+	if d.cut {
+		return true
+	}
 	d.work += w
-	if d.work > detMaxWork {
+	if d.work > detMaxWork || d.m.cancelled() {
 		d.cut = true
 	}
 	return d.cut
 }
 
 // column returns field i's value ids, one per record searched, oldest
-// first.
+// first, read from the store's column (never whole rows). The candidates'
+// columns are kept for the whole search, and so are the first targets'
+// up to detKeptColumns in all; any other is decoded into a scratch buffer
+// valid until the next such call. Each decoding counts as work.
 func (d *detSearch) column(i int) []uint32 {
 	if c, ok := d.cols[i]; ok {
 		return c
 	}
-	c := make([]uint32, d.n)
-	for r := range c {
-		c[r] = idAt(d.m.st.row(d.lo+r), i)
+	d.spend(d.n)
+	if d.isCand[i] || len(d.cols) < detKeptColumns {
+		c := d.m.st.column(i, d.lo, d.lo+d.n, nil)
+		d.cols[i] = c
+		return c
 	}
-	d.cols[i] = c
-	return c
+	d.tcol = d.m.st.column(i, d.lo, d.lo+d.n, d.tcol)
+	return d.tcol
 }
 
 // tryTargets measures H(t|set) for each target outside set, keeps the
@@ -451,6 +470,7 @@ func (d *detSearch) jointS(p *partition, t int) float64 {
 	}
 	sxf := 0.0
 	if cells := len(p.sizes) * k; cells <= detDenseCells {
+		d.spend(cells) // clearing and summing the table is work too
 		if cap(d.dense) < cells {
 			d.dense = make([]int32, cells)
 		}

@@ -1,31 +1,3 @@
-// Package model keeps exact, incrementally updated information measures of
-// a window of log records: per field the Shannon entropy H(F), per pair of
-// fields the joint entropy H(F,G), and from them, by the chain rule
-// H(F|G) = H(F,G) − H(G), conditional entropy and mutual information
-// I(F;G) = H(F) + H(G) − H(F,G). Units are bits (log base 2) throughout.
-//
-// # The estimator
-//
-// All figures are plug-in (maximum-likelihood) estimates over the records in
-// the window: for a table of counts c_i summing to N,
-//
-//	H = −Σ (c_i/N) log2(c_i/N) = log2 N − S/N,   S = Σ c_i log2 c_i.
-//
-// Each table keeps S, so a record entering or leaving the window changes H
-// in O(1): only the terms of the cells it touches change. S is kept in fixed
-// point (2^-30 bits per unit), so adding and removing the same records
-// returns exactly the same integer, with no floating-point drift however long
-// the stream: the incremental figures equal a recount bit for bit. The
-// rounding of each term is below 5e-10 bits, so H is within 5e-10·K/N of the
-// exact value for a table of K cells. Exactness holds while N·log2(N) stays
-// below 2^33 (windows of up to about 250 million records).
-//
-// The Miller–Madow value H + (K−1)/(2N ln 2) is given beside the plug-in
-// value: it removes the first-order bias that makes plug-in entropy too low
-// when there are few records per value.
-//
-// A record that lacks a field has, for that field, the value "absent", a
-// value of its own.
 package model
 
 import (

@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"math"
 	"time"
 
@@ -19,6 +20,10 @@ type Options struct {
 	// MaxDistinct caps the values interned per identifier field; past it
 	// the field's distinct count and entropy are estimates (default 1<<20).
 	MaxDistinct int
+	// KeepText keeps the text of every value, identifiers' too, instead
+	// of a hash past their first thousands (Counts needs the text to
+	// sketch an identifier with a hash that is the same in every run).
+	KeepText bool
 }
 
 func (o Options) withDefaults() Options {
@@ -78,10 +83,17 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+	batch        batchState
+	// lastDetWork is the work the last determinant search did (tests).
+	lastDetWork int
 
 	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
 	synthetic map[string]Synthetic
 	base      baselines
+
+	// ctx is the context of the snapshot being taken (SnapshotContext);
+	// nil otherwise.
+	ctx context.Context
 }
 
 // New returns an empty model.
@@ -273,11 +285,22 @@ func (m *Model) track(idx int) {
 		m.pairs = append(m.pairs, pair{a: a, b: b, m: newCellMap()})
 		added = append(added, len(m.pairs)-1)
 	}
-	for r := 0; r < m.st.n && len(added) > 0; r++ {
-		row := m.st.row(r)
-		for _, pi := range added {
-			p := &m.pairs[pi]
-			p.m.inc(uint64(idAt(row, p.a))<<32 | uint64(idAt(row, p.b)))
+	if len(added) == 0 || m.st.n == 0 {
+		return
+	}
+	// Column by column: the new field's column once, then each partner's.
+	own := m.st.column(idx, 0, m.st.n, nil)
+	var other []uint32
+	for _, pi := range added {
+		p := &m.pairs[pi]
+		j := p.a + p.b - idx
+		other = m.st.column(j, 0, m.st.n, other)
+		for r, id := range own {
+			a, b := id, other[r]
+			if p.a != idx {
+				a, b = b, a
+			}
+			p.m.inc(uint64(a)<<32 | uint64(b))
 		}
 	}
 }
@@ -325,7 +348,7 @@ func (m *Model) reclassify() {
 		} else {
 			f.identRounds = 0
 		}
-		if f.ident && f.byHash == nil && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+		if f.ident && f.byHash == nil && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
 			f.hashValues()
 		}
 	}

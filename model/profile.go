@@ -193,25 +193,42 @@ func (m *Model) valueText(i int, id uint32) string {
 // numericBins returns quantile bins of f's values when every value is a
 // finite number, else nil.
 func (m *Model) numericBins(f *field) *Bins {
+	if f.overflowed > 0 {
+		return nil
+	}
+	var vals []string
+	var counts []int64
+	for id := 1; id < len(f.counts); id++ {
+		if c := f.counts[id]; c > 0 {
+			vals = append(vals, f.text[id])
+			counts = append(counts, int64(c))
+		}
+	}
+	return numericBinsOf(vals, counts)
+}
+
+// numericBinsOf returns quantile bins of a value table when every value is
+// a finite number, else nil.
+func numericBinsOf(values []string, counts []int64) *Bins {
 	type vc struct {
 		v float64
 		c int
 	}
 	var vals []vc
 	total := 0
-	for id := 1; id < len(f.counts); id++ {
-		c := int(f.counts[id])
+	for i, s := range values {
+		c := int(counts[i])
 		if c == 0 {
 			continue
 		}
-		x, err := strconv.ParseFloat(f.text[id], 64)
+		x, err := strconv.ParseFloat(s, 64)
 		if err != nil || math.IsInf(x, 0) || math.IsNaN(x) {
 			return nil
 		}
 		vals = append(vals, vc{x, c})
 		total += c
 	}
-	if total == 0 || f.overflowed > 0 {
+	if total == 0 {
 		return nil
 	}
 	sort.Slice(vals, func(i, j int) bool { return vals[i].v < vals[j].v })

@@ -1,5 +1,7 @@
 package model
 
+import "sync/atomic"
+
 // store keeps the value ids of the records in the window, oldest first, so
 // that a record leaving the window can be taken off the counts, and so that
 // tables can be rebuilt from the window (when a field starts or stops being
@@ -27,6 +29,10 @@ type store struct {
 	n      int
 	width  int      // the widest row pushed: row(i) has this many ids
 	out    []uint32 // row's result, reused
+	// decoded counts the ids read back (by row and column): the work
+	// scans of the store actually do, for tests of their bounds. Atomic:
+	// the Deep analyses read columns side by side.
+	decoded atomic.Int64
 }
 
 const blockRows = 4096
@@ -60,6 +66,7 @@ func (s *store) at(i int) (*block, int) {
 func (s *store) row(i int) []uint32 {
 	b, r := s.at(i)
 	out := s.out[:s.width]
+	s.decoded.Add(int64(s.width))
 	clear(out[len(b.width):])
 	for j, w := range b.width {
 		c := b.cols[j]
@@ -245,4 +252,48 @@ func (s *store) bytes() int {
 		n += 4*(len(b.lines)+len(b.times)) + 8*(len(b.wideL)+len(b.wideT))
 	}
 	return n
+}
+
+// column returns field j's ids for the window records lo .. hi−1, oldest
+// first, in dst (grown as needed). It decodes that one column only, so its
+// cost is hi−lo whatever the number of fields: scans that need one or two
+// fields (determinants, surprisal, pair tables started late) read columns,
+// never whole rows.
+func (s *store) column(j, lo, hi int, dst []uint32) []uint32 {
+	n := hi - lo
+	if cap(dst) < n {
+		dst = make([]uint32, n)
+	}
+	dst = dst[:n]
+	s.decoded.Add(int64(n))
+	for i := 0; i < n; {
+		b, r := s.at(lo + i)
+		k := min(blockRows-r, n-i)
+		out := dst[i : i+k]
+		i += k
+		if j >= len(b.width) {
+			clear(out)
+			continue
+		}
+		c := b.cols[j]
+		switch b.width[j] {
+		case 0:
+			clear(out)
+		case 1:
+			for x := range out {
+				out[x] = uint32(c[r+x])
+			}
+		case 2:
+			c = c[2*r : 2*(r+k)]
+			for x := range out {
+				out[x] = uint32(c[2*x]) | uint32(c[2*x+1])<<8
+			}
+		default:
+			c = c[4*r : 4*(r+k)]
+			for x := range out {
+				out[x] = uint32(c[4*x]) | uint32(c[4*x+1])<<8 | uint32(c[4*x+2])<<16 | uint32(c[4*x+3])<<24
+			}
+		}
+	}
+	return dst
 }

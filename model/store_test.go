@@ -67,6 +67,18 @@ func TestStoreAgainstSlice(t *testing.T) {
 					t.Fatalf("step %d row %d: %v %+v, want %v %+v", step, i, got, s.metaAt(i), full, want.meta)
 				}
 			}
+			// The column accessor gives the same ids as the rows, over any
+			// range, for every field (and past the widest: absent).
+			lo := r.IntN(len(ref) + 1)
+			hi := lo + r.IntN(len(ref)-lo+1)
+			for j := 0; j <= width+1; j++ {
+				col := s.column(j, lo, hi, nil)
+				for i := lo; i < hi; i++ {
+					if want := idAt(ref[i].row, j); col[i-lo] != want {
+						t.Fatalf("step %d column %d row %d: %d, want %d", step, j, i, col[i-lo], want)
+					}
+				}
+			}
 		}
 	}
 	if len(s.blocks) > len(ref)/blockRows+2 {

@@ -84,9 +84,18 @@ const (
 
 // cost is the surprisal of the field in row, and whether it broke the rule.
 func (c *fieldCost) cost(row []uint32) (float64, bool) {
-	id := idAt(row, c.idx)
+	gid := uint32(absent)
 	if c.given >= 0 {
-		if gid := idAt(row, c.given); int(gid) < len(c.expect) {
+		gid = idAt(row, c.given)
+	}
+	return c.costOf(idAt(row, c.idx), gid)
+}
+
+// costOf is cost for a record whose field has value id and whose given
+// field (if any) has gid.
+func (c *fieldCost) costOf(id, gid uint32) (float64, bool) {
+	if c.given >= 0 {
+		if int(gid) < len(c.expect) {
 			switch e := c.expect[gid]; {
 			case e == int64(id):
 				return c.match[gid], false
@@ -96,7 +105,6 @@ func (c *fieldCost) cost(row []uint32) (float64, bool) {
 		}
 	}
 	if c.pair != nil {
-		gid := idAt(row, c.given)
 		k := uint64(gid)<<32 | uint64(id)
 		if !c.givenIsA {
 			k = uint64(id)<<32 | uint64(gid)
@@ -131,21 +139,38 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 		return []SurprisingRecord{}
 	}
 	rows := m.deepRows()
+	lo := m.st.n - rows
+	// Field by field over the store's columns (never whole rows), adding
+	// each field's cost to its records' totals in the same order a
+	// record-by-record pass would.
 	sum := make([]float64, len(costs))
-	h := &recHeap{}
-	for r := m.st.n - rows; r < m.st.n; r++ {
-		row := m.st.row(r)
-		total := 0.0
-		for j, c := range costs {
-			v, _ := c.cost(row)
-			sum[j] += v
-			total += v
+	totals := make([]float64, rows)
+	var col, gcol []uint32
+	for j, c := range costs {
+		if m.cancelled() {
+			return []SurprisingRecord{}
 		}
-		line := m.st.metaAt(r).line
+		col = m.st.column(c.idx, lo, m.st.n, col)
+		if c.given >= 0 {
+			gcol = m.st.column(c.given, lo, m.st.n, gcol)
+		}
+		for r, id := range col {
+			gid := uint32(absent)
+			if c.given >= 0 {
+				gid = gcol[r]
+			}
+			v, _ := c.costOf(id, gid)
+			sum[j] += v
+			totals[r] += v
+		}
+	}
+	h := &recHeap{}
+	for r, total := range totals {
+		line := m.st.metaAt(lo + r).line
 		if h.Len() < k {
-			heap.Push(h, scored{r, line, total})
-		} else if (*h)[0].less(scored{r, line, total}) {
-			(*h)[0] = scored{r, line, total}
+			heap.Push(h, scored{lo + r, line, total})
+		} else if (*h)[0].less(scored{lo + r, line, total}) {
+			(*h)[0] = scored{lo + r, line, total}
 			heap.Fix(h, 0)
 		}
 	}

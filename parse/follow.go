@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"syscall"
 	"time"
 
 	"github.com/fsnotify/fsnotify"
@@ -154,8 +155,7 @@ func (fl *Follower) Next(ctx context.Context) (Line, error) {
 		fl.started = true
 		fl.lastLine = time.Now()
 		if err := fl.begin(); err != nil {
-			fl.end()
-			return Line{}, &SourceError{Source: fl.path, Err: err}
+			return Line{}, fl.fail(&SourceError{Source: fl.path, Err: err})
 		}
 	}
 	for {
@@ -166,16 +166,19 @@ func (fl *Follower) Next(ctx context.Context) (Line, error) {
 			if text, tooLong, ok := c.split.line(); ok {
 				return fl.emit(c, text, tooLong), nil
 			}
+			if l, emitted, again := fl.truncated(c); again {
+				if emitted {
+					return l, nil
+				}
+				continue
+			}
 			n, err := c.read(time.Now())
 			fl.addBytes(n)
 			if n > 0 {
 				continue
 			}
 			if err != nil && !errors.Is(err, io.EOF) {
-				off := c.off
-				fl.event("fault", fmt.Sprintf("%s: read failed at byte %d: %v", fl.path, off, err))
-				fl.end()
-				return Line{}, &SourceError{Source: fl.path, Offset: off, Err: err}
+				return Line{}, fl.fail(&SourceError{Source: fl.path, Offset: c.off, Err: explainRead(err)})
 			}
 			l, emitted, again := fl.atEOF(c)
 			if emitted {
@@ -187,7 +190,7 @@ func (fl *Follower) Next(ctx context.Context) (Line, error) {
 		} else if fl.appear() {
 			continue
 		}
-		if fl.opt.Idle > 0 && time.Since(fl.lastLine) >= fl.opt.Idle {
+		if fl.idleOver() {
 			if c := fl.cur; c != nil {
 				if text, tooLong, ok := c.split.rest(); ok {
 					return fl.emit(c, text, tooLong), nil
@@ -211,6 +214,10 @@ func (fl *Follower) begin() error {
 	}
 	if err != nil {
 		return explainOpen(err)
+	}
+	if c.fi.IsDir() {
+		c.close()
+		return &explained{"is a folder, not a file (follow one file in it)", syscall.EISDIR}
 	}
 	off := int64(0)
 	if !fl.opt.FromStart {
@@ -238,19 +245,10 @@ func (fl *Follower) atEOF(c *followFile) (l Line, emitted, again bool) {
 	switch {
 	case err == nil && os.SameFile(st, c.fi):
 		c.superseded = false
-		size := fl.size(c)
-		if size < c.off || (size > c.off && c.rewritten()) {
-			fl.event("truncated", fmt.Sprintf("%s was truncated at byte %d (copytruncate?); reading it again from its start", fl.path, c.off))
-			if text, tooLong, has := c.split.rest(); has {
-				l, emitted = fl.emit(c, text, tooLong), true
-			}
-			if err := c.seek(0); err != nil {
-				fl.event("fault", fl.path+": "+err.Error())
-			}
-			c.num = 0
-			return l, emitted, true
+		if l, emitted, again = fl.truncated(c); again {
+			return l, emitted, again
 		}
-		return Line{}, false, size > c.off
+		return Line{}, false, fl.size(c) > c.off
 	case err == nil:
 		fl.take(st)
 	case errors.Is(err, os.ErrNotExist):
@@ -282,8 +280,53 @@ func (fl *Follower) atEOF(c *followFile) (l Line, emitted, again bool) {
 	} else {
 		fl.setMissing("waiting for " + fl.path + " to appear")
 	}
+	fl.lastLine = now // the grace was no idle time: the idle clock starts again
 	return l, emitted, true
 }
+
+// truncated looks whether c was truncated (it is shorter than the offset
+// read, or the bytes read are no longer there: truncated and written past
+// the offset since the last look), and if so starts reading it again from
+// its start, returning a half line held from before (emitted). again says
+// it was.
+func (fl *Follower) truncated(c *followFile) (l Line, emitted, again bool) {
+	if size := fl.size(c); size >= c.off && !c.rewritten() {
+		return Line{}, false, false
+	}
+	fl.event("truncated", fmt.Sprintf("%s was truncated at byte %d (copytruncate?); reading it again from its start", fl.path, c.off))
+	if text, tooLong, has := c.split.rest(); has {
+		l, emitted = fl.emit(c, text, tooLong), true
+	}
+	if err := c.seek(0); err != nil {
+		fl.event("fault", fl.path+": "+err.Error())
+	}
+	c.num = 0
+	return l, emitted, true
+}
+
+// idleOver says whether --idle has run out: no line for Idle. A rotation
+// in its grace is not idle (the old file may still grow, and the new one
+// waits its turn), and neither is a half-written line, for up to
+// partialIdle times Idle, since its writer may finish it after a pause.
+func (fl *Follower) idleOver() bool {
+	if fl.opt.Idle <= 0 {
+		return false
+	}
+	idle := fl.opt.Idle
+	if c := fl.cur; c != nil {
+		if c.superseded || len(fl.queue) > 0 {
+			return false
+		}
+		if c.split.pending() > 0 {
+			idle *= partialIdle
+		}
+	}
+	return time.Since(fl.lastLine) >= idle
+}
+
+// partialIdle: a half-written line holds --idle off for this many times
+// its length (then it is read as the stream's last line).
+const partialIdle = 4
 
 // supersededEvent records that the path no longer names c.
 func (fl *Follower) supersededEvent(c *followFile, successor bool) {
@@ -369,8 +412,12 @@ func (fl *Follower) wait(ctx context.Context) error {
 	if c := fl.cur; c != nil && c.superseded {
 		d = min(d, max(time.Millisecond, fl.opt.RotateGrace-time.Since(c.lastData)))
 	}
-	if fl.opt.Idle > 0 {
-		d = min(d, max(time.Millisecond, fl.opt.Idle-time.Since(fl.lastLine)))
+	if c := fl.cur; fl.opt.Idle > 0 && (c == nil || !c.superseded && len(fl.queue) == 0) {
+		idle := fl.opt.Idle
+		if c != nil && c.split.pending() > 0 {
+			idle *= partialIdle
+		}
+		d = min(d, max(time.Millisecond, idle-time.Since(fl.lastLine)))
 	}
 	t := time.NewTimer(d)
 	defer t.Stop()
@@ -431,6 +478,18 @@ func (fl *Follower) note(s string) {
 	fl.mu.Lock()
 	fl.status.Note = s
 	fl.mu.Unlock()
+}
+
+// fail stops following on a fault, which is listed as an event and shown
+// as the state, so that no part of a screen says all is well.
+func (fl *Follower) fail(err *SourceError) error {
+	fl.event("fault", err.Error())
+	fl.end()
+	fl.mu.Lock()
+	fl.status.State = StateFailed
+	fl.status.Note = err.Error()
+	fl.mu.Unlock()
+	return err
 }
 
 // end stops following: Next returns io.EOF from now on.

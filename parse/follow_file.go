@@ -12,6 +12,12 @@ import (
 // looks (copytruncate followed by a burst of writes).
 const tailKeep = 32
 
+// headKeep is how many of a file's first bytes a followed file remembers:
+// with the last bytes read, a fingerprint of what was read that a
+// truncation and rewrite changes even when the new text happens to end at
+// the old offset with the same bytes.
+const headKeep = 64
+
 // followFile is one file being followed: the file that carries the path's
 // name, or an older one being drained after a rotation.
 //
@@ -23,6 +29,8 @@ type followFile struct {
 	off   int64
 	tail  [tailKeep]byte
 	tailN int
+	head  [headKeep]byte
+	headN int
 	split splitter
 	num   int64 // lines returned from this file
 
@@ -51,9 +59,12 @@ func (c *followFile) seek(off int64) error {
 	if _, err := c.f.Seek(off, io.SeekStart); err != nil {
 		return err
 	}
-	c.off, c.tailN = off, 0
+	c.off, c.tailN, c.headN = off, 0, 0
 	c.split.reset()
 	if off > 0 {
+		if m, err := c.f.ReadAt(c.head[:min(off, headKeep)], 0); err == nil || m > 0 {
+			c.headN = m
+		}
 		n := int64(tailKeep)
 		if off < n {
 			n = off
@@ -72,6 +83,9 @@ func (c *followFile) read(now time.Time) (int, error) {
 		c.off += int64(n)
 		c.lastData = now
 		got := c.split.buf[len(c.split.buf)-n:]
+		if from := c.off - int64(n); c.headN < headKeep && from == int64(c.headN) {
+			c.headN += copy(c.head[c.headN:], got)
+		}
 		if len(got) >= tailKeep {
 			c.tailN = copy(c.tail[:], got[len(got)-tailKeep:])
 		} else {
@@ -85,11 +99,20 @@ func (c *followFile) read(now time.Time) (int, error) {
 
 // rewritten says whether the bytes before off are no longer those read: the
 // file was truncated and written past off again since the last look.
+// The follower asks at every look, before it reads on, so a file truncated
+// and written past the old offset meanwhile is read again from its start
+// instead of from the middle of its new text.
 func (c *followFile) rewritten() bool {
+	var b [headKeep]byte
+	if c.headN > 0 {
+		m, _ := c.f.ReadAt(b[:c.headN], 0)
+		if m != c.headN || !bytes.Equal(b[:m], c.head[:c.headN]) {
+			return true
+		}
+	}
 	if c.tailN == 0 {
 		return false
 	}
-	var b [tailKeep]byte
 	m, _ := c.f.ReadAt(b[:c.tailN], c.off-int64(c.tailN))
 	return m != c.tailN || !bytes.Equal(b[:m], c.tail[:c.tailN])
 }

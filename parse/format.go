@@ -107,6 +107,9 @@ func Detect(sample [][]byte) (Detection, error) {
 	}
 	for _, name := range Names() {
 		f := registry[name]()
+		if l, ok := f.(Learner); ok {
+			l.Learn(sample)
+		}
 		sum := 0.0
 		for _, l := range sample {
 			l = trimSpace(l)

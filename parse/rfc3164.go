@@ -68,6 +68,11 @@ func (*RFC3164) Parse(line []byte, rec *Record) error {
 	for i < len(rest) && i <= 48 && tagByte(rest[i]) {
 		i++
 	}
+	if i > 0 && i < len(rest) && rest[i] == ' ' {
+		// A tag with spaces ("Quay Desk[212]:") counts only with its
+		// [PID] after it, so that a message's first words stay the message.
+		i = spacedTag(rest, i)
+	}
 	tagEnd := i
 	var pid []byte
 	if i > 0 && i < len(rest) && rest[i] == '[' {
@@ -96,9 +101,30 @@ func (*RFC3164) Parse(line []byte, rec *Record) error {
 	return nil
 }
 
+// tagByte: RFC 3164 4.1.3 allows alphanumerics; daemons also write '-',
+// '_', '.', '/', '@' and parentheses ("gated(pam_unix)").
 func tagByte(c byte) bool {
 	return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' ||
-		c == '-' || c == '_' || c == '.' || c == '/' || c == '@'
+		c == '-' || c == '_' || c == '.' || c == '/' || c == '@' || c == '(' || c == ')'
+}
+
+// spacedTag extends a tag that stopped at a space at i over further words
+// when a "[PID]:" follows within 48 bytes; otherwise it returns i.
+func spacedTag(rest []byte, i int) int {
+	j := i
+	for j < len(rest) && j <= 48 && (tagByte(rest[j]) || rest[j] == ' ') {
+		j++
+	}
+	if j < len(rest) && rest[j] == '[' && rest[j-1] != ' ' {
+		k := j + 1
+		for k < len(rest) && isDigit(rest[k]) {
+			k++
+		}
+		if k > j+1 && k+1 < len(rest) && rest[k] == ']' && rest[k+1] == ':' {
+			return j
+		}
+	}
+	return i
 }
 
 var months = [12]string{"Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"}

@@ -35,6 +35,10 @@ const timeSearchRecords = 100
 //     fractional seconds; it has no year, which is inferred (see Now).
 //   - access: the NCSA access-log stamp "02/Jan/2006:15:04:05 -0700", with
 //     or without its square brackets.
+//   - header: the forms line headers use (see headTimes): "260314 021109",
+//     "26/03/14 02:11:09", "03-14 02:11:09.417", ctime, "Mar 14 02:11:09
+//     2026", "2026-03-14-02.11.09.417312", "20260314-2:11:09:417", ...;
+//     under the usual time keys only.
 //
 // Times without a zone are read as UTC: bitsift only uses differences
 // between a stream's times (the duration window, replay pacing), and those
@@ -67,6 +71,8 @@ var timeLayouts = []*timeLayout{
 	{name: "rfc3339", strong: true, parse: parseISO},
 	{name: "access", strong: true, parse: parseAccess},
 	{name: "syslog", strong: true, parse: parseSyslog},
+	// The forms line headers use (header_time.go), under time keys only.
+	{name: "header", parse: parseHeadTime},
 	{name: "epoch", parse: func(s string, _ time.Time) (int64, bool) { return parseEpoch(s) }},
 }
 

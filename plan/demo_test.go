@@ -1,7 +1,6 @@
 package plan
 
 import (
-	"strings"
 	"testing"
 
 	"bitsift/demo"
@@ -66,32 +65,6 @@ func TestDemoPlan(t *testing.T) {
 	t.Logf("before %+v after %+v tables %+v rate %v bound %v→%v notes %v", m.Before, m.After, m.Tables, p.RecordsPerSecond, p.EntropyBefore, p.EntropyAfter, p.Notes)
 	for _, f := range p.Fields {
 		t.Logf("%-14s %-7s %-40s H=%.3f sH=%.3f L=%.3f table=%d", f.Name, f.Action, f.Reason, f.Entropy, f.SampleEntropy, f.Huffman, f.TableEntries)
-	}
-}
-
-// TestSampleRing: the sample keeps the newest lines, in order, within its
-// caps, and a clone is independent.
-func TestSampleRing(t *testing.T) {
-	s := NewSample(3)
-	for _, l := range []string{"a", "", "b", "c", "d", "e"} {
-		s.Add([]byte(l))
-	}
-	c := s.Clone()
-	s.Add([]byte("f"))
-	var got []string
-	c.each(func(l []byte) { got = append(got, string(l)) })
-	if strings.Join(got, ",") != "c,d,e" {
-		t.Errorf("clone holds %v, want c,d,e", got)
-	}
-	s.Keep(1)
-	got = nil
-	s.each(func(l []byte) { got = append(got, string(l)) })
-	if strings.Join(got, ",") != "f" || s.bytes != 1 {
-		t.Errorf("after Keep(1): %v (%d bytes)", got, s.bytes)
-	}
-	c.Add([]byte("g"))
-	if c.Len() != 3 {
-		t.Errorf("clone grew to %d lines", c.Len())
 	}
 }
 

@@ -114,7 +114,7 @@ func (p *Plan) Measure(smp *Sample) error {
 	}
 	cls := newClasses(p, m.json)
 	var bl, al []byte
-	smp.each(func(line []byte) {
+	smp.Each(func(line []byte) {
 		var ok bool
 		bl, al, ok = m.serialise(in, line, bl[:0], al[:0])
 		if !ok {

@@ -1,4 +1,4 @@
-package ingest
+package companion
 
 import (
 	"math"
@@ -16,14 +16,36 @@ import (
 // bucketEdges are the bucket edges within a decade, in tenths.
 var bucketEdges = [4]int64{10, 18, 32, 56}
 
-// buckets labels values, keeping each label made so that labelling
-// allocates only for a bucket not seen before.
-type buckets struct {
-	labels map[int]string // bucket code → label
+// Buckets is the FIELD~log companion. It keeps each label made so that
+// labelling allocates only for a bucket not seen before.
+type Buckets struct {
+	source, name string
+	labels       map[int]string // bucket code → label
+	out          []byte
+}
+
+// NewBuckets returns the ~log companion of field source.
+func NewBuckets(source string) *Buckets {
+	return &Buckets{source: source, name: source + BucketSuffix}
+}
+
+// Source implements Companion.
+func (b *Buckets) Source() string { return b.source }
+
+// Name implements Companion.
+func (b *Buckets) Name() string { return b.name }
+
+// Method implements Companion.
+func (*Buckets) Method() string { return "log10 buckets, 4 per decade" }
+
+// Value implements Companion.
+func (b *Buckets) Value(v []byte) []byte {
+	b.out = append(b.out[:0], b.label(v)...)
+	return b.out
 }
 
 // label returns the bucket label of the number v.
-func (b *buckets) label(v []byte) string {
+func (b *Buckets) label(v []byte) string {
 	if isNull(v) {
 		if len(v) == 0 {
 			return ""
@@ -179,6 +201,8 @@ func parseNumber(b []byte) (float64, bool) {
 	}
 	f := float64(mant)
 	switch {
+	case mant == 0:
+		// 0e700: zero whatever the exponent (0 × 10^700 would be NaN).
 	case exp > 0:
 		f *= math.Pow10(exp)
 	case exp < 0 && exp >= -300:

@@ -1,0 +1,125 @@
+package companion
+
+import (
+	"math"
+	"strconv"
+	"testing"
+)
+
+func TestBucketLabels(t *testing.T) {
+	// Edges 1, 1.8, 3.2, 5.6 per decade: 10^(k/4) = 1, 1.778, 3.162, 5.623
+	// rounded to two digits (arithmetic by hand).
+	cases := []struct{ in, want string }{
+		{"1", "[1,1.8)"}, {"1.79", "[1,1.8)"}, {"1.8", "[1.8,3.2)"}, {"180", "[180,320)"},
+		{"1.8e2", "[180,320)"}, {"180.000", "[180,320)"}, {"319.99", "[180,320)"}, {"999", "[560,1000)"},
+		{"1000", "[1000,1800)"}, {"0.0056", "[0.0056,0.01)"}, {"0.18", "[0.18,0.32)"},
+		{"-250", "(-320,-180]"}, {"0", "0"}, {"-0.0", "0"}, {"-", "-"}, {"12ms", "NaN"},
+		{"3.2e9", "[3.2e+09,5.6e+09)"}, {"+7", "[5.6,10)"},
+	}
+	var b Buckets
+	for _, c := range cases {
+		t.Run(c.in, func(t *testing.T) {
+			if got := b.label([]byte(c.in)); got != c.want {
+				t.Errorf("label(%s) = %s, want %s", c.in, got, c.want)
+			}
+		})
+	}
+}
+
+// parseNumber against the standard library's strconv.ParseFloat, the
+// reference for reading decimals.
+func TestParseNumber(t *testing.T) {
+	for _, s := range []string{"0", "1", "-1", "3.25", "0.0001", "123456789012345678901234", "1e3", "1E-3",
+		"-2.5e+10", ".5", "5.", "007", "1.8", "0.18", "99.999"} {
+		want, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, ok := parseNumber([]byte(s))
+		if !ok || math.Abs(got-want) > 1e-15*math.Abs(want) {
+			t.Errorf("parseNumber(%s) = %v, %v; strconv: %v", s, got, ok, want)
+		}
+	}
+	for _, s := range []string{"", "-", "+", ".", "e5", "1e", "0x10", "NaN", "Inf", "1.2.3", "12ms", "1 2"} {
+		if _, ok := parseNumber([]byte(s)); ok {
+			t.Errorf("parseNumber(%q) accepted", s)
+		}
+	}
+}
+
+func TestMask(t *testing.T) {
+	cases := []struct{ in, want string }{
+		{"valve 3 open for 40s", "valve <num> open for <num>s"},
+		{"probe 10.4.0.9:8125 sent 1,024 bytes", "probe <ip> sent <num> bytes"},
+		{"peer fe80::1 dropped", "peer <ip> dropped"},
+		{"at 12:30:05 sharp", "at <num>:<num>:<num> sharp"},
+		{"reading 5f0c2a9e-77b1-4c3e-9d2a-0123456789ab stored", "reading <uuid> stored"},
+		{"crc 0x1F3a mismatch in deadbeef42", "crc <hex> mismatch in <hex>"},
+		{"wrote /var/lib/gh/zone-b.csv (ok)", "wrote <path> (ok)"},
+		{`zone "north bay" is dry`, "zone <str> is dry"},
+		{`label='north bay', rh=71`, "label=<str>, rh=<num>"},
+		{"see https://example.org/x?a=1 now", "see <url> now"},
+		{"It's dry", "It's dry"},
+		{"sensor[12]: ok.", "sensor[<num>]: ok."},
+	}
+	tp := newTemplater()
+	for _, c := range cases {
+		t.Run(c.in, func(t *testing.T) {
+			tp.mask([]byte(c.in))
+			if got := string(tp.masked()); got != c.want {
+				t.Errorf("mask(%q) = %q, want %q", c.in, got, c.want)
+			}
+		})
+	}
+}
+
+func TestTemplateMerge(t *testing.T) {
+	tp := newTemplater()
+	steps := []struct{ in, want string }{
+		{"mister on in zone north by ops", "mister on in zone north by ops"},
+		{"mister on in zone south by ops", "mister on in zone <*> by ops"},
+		{"mister on in zone east by ops", "mister on in zone <*> by ops"},
+		{"fan 3 stalled", "fan <num> stalled"},
+		// Under the similarity threshold: a template of its own.
+		{"mister off after rain alarm from ops", "mister off after rain alarm from ops"},
+	}
+	for _, s := range steps {
+		if got := string(tp.template([]byte(s.in))); got != s.want {
+			t.Errorf("template(%q) = %q, want %q", s.in, got, s.want)
+		}
+	}
+	if len(tp.groups) != 3 {
+		t.Errorf("%d groups, want 3", len(tp.groups))
+	}
+}
+
+func TestTemplateCap(t *testing.T) {
+	tp := newTemplater()
+	for i := 0; i < 3*maxTemplates; i++ {
+		// Every message of a new length starts a group of its own.
+		msg := make([]byte, 0, 2*(i%200+1))
+		for w := 0; w <= i%200; w++ {
+			msg = append(msg, "ab"[i/200%2], ' ')
+		}
+		msg = append(msg, strconv.Itoa(i/400)...)
+		msg = append(msg, 'x')
+		tp.template(msg)
+	}
+	if len(tp.groups) > maxTemplates {
+		t.Errorf("%d groups, cap %d", len(tp.groups), maxTemplates)
+	}
+}
+
+func BenchmarkTemplate(b *testing.B) {
+	msgs := [][]byte{
+		[]byte("Failed password for invalid user gnome from 10.4.0.9 port 52231 ssh2"),
+		[]byte("mister on in zone north by ops after 40s"),
+		[]byte(`pam_unix(sshd:session): session opened for user kim by (uid=0)`),
+		[]byte("Received disconnect from 10.4.0.12 port 40022:11: Bye Bye [preauth]"),
+	}
+	tp := newTemplater()
+	b.ReportAllocs()
+	for i := 0; b.Loop(); i++ {
+		tp.template(msgs[i%len(msgs)])
+	}
+}
