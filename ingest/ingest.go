@@ -242,6 +242,7 @@ func (in *Ingester) start() {
 	for i, p := range in.pending {
 		texts[i] = p.text
 	}
+	in.learnForced(texts)
 	in.checkForced(texts)
 	if in.format == nil {
 		d, err := parse.Detect(in.detectionSample(texts))
