@@ -1,80 +1,99 @@
 package cli
 
 import (
+	"context"
 	"encoding/csv"
-	"encoding/json"
-	"fmt"
-	"regexp"
+	"os/exec"
+	"path/filepath"
 	"strings"
 	"testing"
+	"time"
+
+	"bitsift/demo"
 )
 
-// hostileNames are field names and values that try to act on their
-// reader: a spreadsheet formula, terminal escapes (ESC, BEL, CSI as a C1
-// control, NUL), a bidirectional override, and Markdown links and images.
-// (The formula and link shapes are the usual CSV-injection and Markdown
-// examples, written from memory.)
-var hostileNames = []string{
-	`=HYPERLINK("http://evil.test","x")`, "+cmd", "-2+3", "@SUM(A1)", "\tpad", "\rret",
-	"esc\x1b[2Jclear", "bell\x07", "csi\u009b31m", "nul\x00byte", "bidi\u202eevil", "[click](http://evil.test)",
-	"![img](http://evil.test/x.png)", "<http://evil.test>",
+// TestReportFormatsCarryChanges: Markdown, CSV and HTML of report
+// --baseline carry the broken rule of the demo incident (route → upstream,
+// package demo), the timeline and the surprising records. The CSV is read
+// back with encoding/csv (RFC 4180), the HTML rendered in headless
+// Chromium.
+func TestReportFormatsCarryChanges(t *testing.T) {
+	if testing.Short() {
+		t.Skip("reads 110,000 demo lines")
+	}
+	g := demo.New(1, 0)
+	lines := make([]string, 110_000)
+	for i := range lines {
+		lines[i] = string(g.Append(nil)) + "\n"
+	}
+	code, base, errs := run(t, strings.Join(lines[:60_000], ""), "report", "-o", "json", "-")
+	if code != 0 {
+		t.Fatalf("baseline: exit %d: %s", code, errs)
+	}
+	bp := write(t, "base.json", []byte(base))
+	inc := write(t, "later.jsonl", []byte(strings.Join(lines[60_000:], "")))
+
+	_, md, _ := run(t, "", "report", "-o", "md", "--baseline", bp, inc)
+	for _, want := range []string{"## Timeline", "| broken | upstream | route |", "### Broken rules", "| upstream | route |", "## Most surprising records"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("Markdown lacks %q", want)
+		}
+	}
+
+	_, out, _ := run(t, "", "report", "-o", "csv", "--baseline", bp, inc)
+	rd := csv.NewReader(strings.NewReader(out))
+	rd.FieldsPerRecord = -1
+	rows, err := rd.ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]bool{}
+	for _, r := range rows {
+		if len(r) >= 4 && (r[0] == "broken" || r[0] == "timeline") && r[2] == "upstream" && r[3] == "route" {
+			seen[r[0]+"/"+r[1]] = true
+		}
+		if len(r) > 0 && r[0] == "surprising" {
+			seen["surprising"] = true
+		}
+	}
+	for _, want := range []string{"broken/rule", "broken/example", "timeline/broken", "surprising"} {
+		if !seen[want] {
+			t.Errorf("CSV lacks a %s row for upstream given route", want)
+		}
+	}
+
+	_, page, _ := run(t, "", "report", "-o", "html", "--baseline", bp, inc)
+	path := write(t, "report.html", []byte(page))
+	dom := renderDOM(t, path)
+	for _, want := range []string{"<title>bitsift report</title>", `<table id="broken-table">`, "upstream given route",
+		`<table id="timeline-table">`, `<table id="surprising-table">`, "not measured"} {
+		if !strings.Contains(dom, want) {
+			t.Errorf("rendered DOM lacks %s", want)
+		}
+	}
 }
 
-// TestOutputsNeutraliseHostileText: CSV cells that start with = + - @ tab
-// or CR are neutralised; no output meant for people (text, Markdown, CSV)
-// carries a raw ESC, BEL, C1 control, NUL or bidi override; Markdown turns
-// no value into a link or an image.
-func TestOutputsNeutraliseHostileText(t *testing.T) {
-	var b strings.Builder
-	for i := 0; i < 300; i++ {
-		b.WriteString("{")
-		for j, n := range hostileNames {
-			if j > 0 {
-				b.WriteString(",")
-			}
-			// The field named n takes few values; "berth" determines it,
-			// so the names show as fields and as best predictors.
-			k, _ := json.Marshal(n)
-			v, _ := json.Marshal(fmt.Sprintf("%s%d", hostileNames[(j+i%3)%len(hostileNames)], i%3))
-			fmt.Fprintf(&b, "%s:%s", k, v)
-		}
-		fmt.Fprintf(&b, ",\"berth\":%d}\n", i%3)
-	}
-	p := write(t, "hostile-names.jsonl", []byte(b.String()))
-	for _, format := range []string{"text", "markdown", "csv"} {
-		code, out, errs := run(t, "", "report", "-o", format, p)
-		if code != 0 {
-			t.Fatalf("%s: exit %d: %s", format, code, errs)
-		}
-		for _, bad := range []string{"\x1b", "\x07", "\x00", "\u009b", "\u202e", "\u0085"} {
-			if strings.Contains(out, bad) {
-				t.Errorf("%s: a raw %q in the output", format, bad)
-			}
-		}
-		switch format {
-		case "csv":
-			rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
-			if err != nil {
-				t.Fatalf("csv: %v", err)
-			}
-			for _, row := range rows[1:] {
-				for _, cell := range []string{row[0], row[8]} { // name, best_given
-					if cell != "" && strings.ContainsRune("=+-@\t\r", rune(cell[0])) {
-						t.Errorf("csv: cell %q starts with a formula character", cell)
-					}
-				}
-			}
-			if !strings.Contains(out, `'=HYPERLINK`) {
-				t.Errorf("csv: the formula field is not there, neutralised:\n%s", out)
-			}
-		case "markdown":
-			// What Markdown reads: backslash-escaped characters are text.
-			plain := regexp.MustCompile(`\\[[:punct:]]`).ReplaceAllString(out, "")
-			for _, link := range []string{"](", "![", "<http", "http:"} {
-				if strings.Contains(plain, link) {
-					t.Errorf("markdown: %q left as Markdown would read it:\n%s", link, out)
-				}
-			}
+// renderDOM loads a page in headless Chromium and returns the DOM after
+// load (flags as in report's Chromium test).
+func renderDOM(t *testing.T, page string) string {
+	t.Helper()
+	bin := ""
+	for _, name := range []string{"chromium", "chromium-browser"} {
+		if p, err := exec.LookPath(name); err == nil {
+			bin = p
+			break
 		}
 	}
+	if bin == "" {
+		t.Skip("Chromium not installed (apt-get install chromium; CI installs it): the page is not rendered")
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
+	defer cancel()
+	out, err := exec.CommandContext(ctx, bin, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+		"--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync",
+		"--user-data-dir="+t.TempDir(), "--dump-dom", "file://"+filepath.Clean(page)).Output()
+	if err != nil {
+		t.Fatalf("chromium: %v", err)
+	}
+	return string(out)
 }

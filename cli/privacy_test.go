@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"encoding/json"
 	"fmt"
 	"strings"
 	"testing"
@@ -84,5 +85,26 @@ func TestRedactHidesPlantedSecretsEverywhere(t *testing.T) {
 		if !strings.Contains(out, s) {
 			t.Errorf("without --redact %q is not in the report: the test plants nothing", s)
 		}
+	}
+}
+
+// TestWhereLeavesFilteredRecordsOut: a record left out by --where never
+// reaches the model (lines = records + rejected + filtered), and under
+// --redact nothing of it shows either.
+func TestWhereLeavesFilteredRecordsOut(t *testing.T) {
+	p := write(t, "berths.jsonl", privacyLog(false))
+	code, out, errs := run(t, "", "report", "-o", "json", "--redact", "--where", "berth=3", p)
+	if code != 0 && code != 3 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r struct{ Records, Rejected, Lines, Filtered int }
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	if r.Records+r.Rejected+r.Filtered != r.Lines || r.Filtered == 0 || r.Records == 0 {
+		t.Errorf("records %d + rejected %d + filtered %d != lines %d", r.Records, r.Rejected, r.Filtered, r.Lines)
+	}
+	if strings.Contains(out, "skipper") || strings.Contains(out, plantMail) {
+		t.Error("a raw value of a filtered record reached the output")
 	}
 }

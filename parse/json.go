@@ -47,6 +47,14 @@ type jsonParser struct {
 
 // Parse implements Format.
 func (j *JSON) Parse(line []byte, rec *Record) error {
+	if j.flat(line, rec) {
+		return nil
+	}
+	return j.full(line, rec)
+}
+
+// full reads line with the full parser: nesting, escapes, repeated keys.
+func (j *JSON) full(line []byte, rec *Record) error {
 	p := jsonParser{s: line, rec: rec, key: &j.key, dup: &j.dup}
 	j.key = j.key[:0]
 	j.dup.reset()
