@@ -98,7 +98,7 @@ func WriteJQRestore(w io.Writer, p *Plan) error {
 	var b strings.Builder
 	p.comment(&b)
 	b.WriteString("# Restore: rebuilds what the drop program (--emit jq) deleted.\n" +
-		"# Use: jq -c -n -f THIS_FILE < dropped.jsonl > restored.jsonl\n"+
+		"# Use: jq -c -n -f THIS_FILE < dropped.jsonl > restored.jsonl\n" +
 		"# (-n: the tables are read once, then each input line is restored)\n")
 	rs, parents := restorables(p, p.Measured.Paths)
 	rebuilt := map[string]bool{}
