@@ -92,6 +92,12 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if !(c.maxLoss >= 0) || math.IsInf(c.maxLoss, 1) { // NaN fails every comparison
 		return usage("plan: --max-loss must be a number of bits per record, 0 or more")
 	}
+	if isProf, err := profileInputs(paths); err != nil || isProf {
+		if err != nil {
+			return err
+		}
+		return c.runProfiles(ctx, std, paths)
+	}
 	cfg, err := c.config()
 	if err != nil {
 		return err
@@ -153,6 +159,31 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err := ctx.Err(); err != nil {
 		return err // interrupted while measuring: nothing is written
 	}
+	return c.write(ctx, std, snap, p, readErr)
+}
+
+// runProfiles plans from profiles: chosen from the counts alone, as a
+// profile keeps no raw line to measure on or rebuild.
+func (c *planCmd) runProfiles(ctx context.Context, std IO, paths []string) error {
+	prof, err := mergedProfile(std, paths)
+	if err != nil {
+		return err
+	}
+	snap := prof.Snapshot(model.SnapshotOptions{})
+	pins, err := c.pins(snap)
+	if err != nil {
+		return err
+	}
+	if snap.Records == 0 {
+		return &ExitError{Code: ExitUnreadable, Err: errors.New("plan: the profile counts no records")}
+	}
+	p := plan.Choose(snap, plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: prof.TimeField != ""})
+	p.Notes = append(p.Notes, "not measured and not verified: "+errNoLines.Error()+"; the saving is the model's estimate")
+	return c.write(ctx, std, snap, p, nil)
+}
+
+// write writes the plan as the flags ask.
+func (c *planCmd) write(ctx context.Context, std IO, snap *model.Snapshot, p *plan.Plan, readErr error) error {
 	write := func(w io.Writer) error {
 		switch {
 		case c.emit == "jq":
