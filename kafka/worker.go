@@ -58,7 +58,11 @@ type WorkerOptions struct {
 
 	// crashAfter, in tests, makes the worker stop dead right after
 	// writing its crashAfter-th profile, before committing its offsets.
+	// With instanceID (static membership) its client then closes without
+	// leaving the group, as a killed process does: the group notices when
+	// its session times out.
 	crashAfter int
+	instanceID string
 }
 
 // Segment is the records of one partition that one profile counts: the
@@ -161,6 +165,9 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 		kgo.AdjustFetchOffsetsFn(w.adjust),
 		kgo.OnPartitionsRevoked(w.revoked), kgo.OnPartitionsLost(w.lost),
 	)
+	if opt.instanceID != "" {
+		opts = append(opts, kgo.InstanceID(opt.instanceID))
+	}
 	if opt.SessionTimeout > 0 {
 		opts = append(opts, kgo.SessionTimeout(opt.SessionTimeout), kgo.HeartbeatInterval(opt.SessionTimeout/5),
 			kgo.RebalanceTimeout(4*opt.SessionTimeout))
@@ -333,6 +340,9 @@ func (w *Worker) closeAged() error {
 // closeSeg writes partition p's open profile and queues its offset for
 // the commit.
 func (w *Worker) closeSeg(p int32) error {
+	if w.crashed {
+		return errCrashed // a dead worker writes nothing more
+	}
 	s := w.segs[p]
 	if s == nil {
 		return nil
