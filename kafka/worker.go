@@ -118,7 +118,7 @@ type Worker struct {
 	crashed bool
 	err     error
 
-	Stats WorkerStats
+	Stats WorkerStats // under mu while Run runs
 }
 
 // WorkerStats count what a worker did.
@@ -212,6 +212,7 @@ func (w *Worker) Run(ctx context.Context) error {
 		})
 		n := fetches.NumRecords()
 		w.mu.Lock()
+		w.Stats.Records += int64(n)
 		fetches.EachRecord(func(r *kgo.Record) { w.pending = append(w.pending, r) })
 		err := w.route(ctx, n == 0)
 		if err == nil {
@@ -233,7 +234,6 @@ func (w *Worker) Run(ctx context.Context) error {
 		}
 		if n > 0 {
 			last = time.Now()
-			w.Stats.Records += int64(n)
 		} else if w.opt.Idle > 0 && time.Since(last) >= w.opt.Idle {
 			w.logf("no record for --idle %s: stopping", w.opt.Idle)
 			break

@@ -173,6 +173,11 @@ func runFleet(t *testing.T, encode func(*Segment, io.Writer) error, newIngester 
 	if !errors.Is(ended["w1"], errCrashed) {
 		t.Fatalf("w1 ended with %v, not killed after writing", ended["w1"])
 	}
+	waitUntil(t, "w2 to read records", func() bool {
+		w2.mu.Lock()
+		defer w2.mu.Unlock()
+		return w2.Stats.Records > 0
+	})
 	leave2()
 	waitFor("w2")
 	if err := <-prodDone; err != nil {
