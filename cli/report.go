@@ -25,6 +25,7 @@ type streamFlags struct {
 	redactFields []string
 	analyseTime  bool
 	redactKey    string
+	narrow       narrowFlags
 	templates    []string
 }
 
@@ -37,6 +38,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
+	f.narrow.register(cmd)
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
@@ -49,8 +51,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	if err != nil {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
+	filter, err := f.narrow.filter()
+	if err != nil {
+		return ingest.Config{}, err
+	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates, Filter: filter}
 	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
 		return ingest.Config{}, err
 	}
@@ -76,8 +82,9 @@ type reportCmd struct {
 	topic    topicFlags
 	live     followFlags
 	output   string
-	baseline string
+	baseline baselineFlag
 	prof     profileFlags
+	by       string
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -116,7 +123,8 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	c.topic.register(cmd, "oldest")
 	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
-	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
+	c.baseline.register(cmd)
+	cmd.Flags().StringVar(&c.by, "by", "", "also report on each of the most frequent values of this field on its own (a section per value; reads the files once more per value)")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -139,13 +147,11 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
-	if c.baseline != "" {
-		p, err := report.ReadBaseline(c.baseline)
-		if err != nil {
-			return &ExitError{Code: ExitUsage, Err: err}
-		}
-		in.Model().SetBaseline(p)
+	base, err := c.baseline.load()
+	if err != nil {
+		return err
 	}
+	in.Model().SetBaseline(base)
 	var readErr error
 	if c.topic.on() {
 		readErr = c.readTopic(ctx, in, cfg.MaxLine)
@@ -161,6 +167,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
+	if err := checkBaseline(in, base); err != nil {
+		return err
+	}
 	if c.live.follow {
 		// An interrupt is how a follow ends: the report of what was read
 		// follows it.
@@ -171,18 +180,31 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 			return err
 		}
 	}
-	return writeReport(ctx, std, in, c.output, readErr)
+	var more func(*report.Report, *model.Snapshot) error
+	if c.by != "" {
+		more = func(rep *report.Report, snap *model.Snapshot) error {
+			return c.groups(ctx, rep, snap, cfg, base, paths)
+		}
+	}
+	return writeReport(ctx, std, in, c.output, readErr, more)
 }
 
 // writeReport takes the final snapshot and writes the report whole, unless
-// ctx ends first; then the exit code says what the input was worth.
-func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error) error {
+// ctx ends first; then the exit code says what the input was worth. more,
+// when not nil, adds to the report before it is written (--by's groups).
+func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error, more func(*report.Report, *model.Snapshot) error) error {
 	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
 	if err != nil {
 		return err
 	}
+	rep := buildReport(in, snap)
+	if more != nil {
+		if err := more(rep, snap); err != nil {
+			return err
+		}
+	}
 	var out bytes.Buffer
-	if err := report.Write(&out, report.Build(snap), format); err != nil {
+	if err := report.Write(&out, rep, format); err != nil {
 		return writeError(err)
 	}
 	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {

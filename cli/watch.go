@@ -2,12 +2,11 @@ package cli
 
 import (
 	"context"
-	"errors"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
-	"bitsift/ingest"
 	"bitsift/parse"
 )
 
@@ -23,6 +22,7 @@ type watchCmd struct {
 	poll        bool
 	forDur      time.Duration
 	idle        time.Duration
+	out         outputFlags
 }
 
 func newWatchCmd(std IO) *cobra.Command {
@@ -62,6 +62,7 @@ for --idle, then prints the text report.`,
 	fs.BoolVar(&c.poll, "poll", false, "look for changes every 250ms instead of waiting for notifications (network filesystems)")
 	fs.DurationVar(&c.forDur, "for", 0, "stop reading after this long (e.g. 30s, 5m); the figures stay on the screen")
 	fs.DurationVar(&c.idle, "idle", 0, "stop reading once no line has come for this long (e.g. 10s)")
+	c.out.register(cmd)
 	return cmd
 }
 
@@ -80,6 +81,9 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if err != nil {
 		return err
 	}
+	if err := c.out.check(); err != nil {
+		return err
+	}
 	cfg.Stdin = std.In
 	fl, err := parse.NewFollower(path, parse.FollowOptions{
 		FromStart: c.fromStart, Lines: c.lines, RotateGrace: c.rotateGrace, Poll: c.poll,
@@ -92,7 +96,7 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if c.forDur > 0 {
 		src = newUntilSource(fl, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	return present(ctx, std, cfg, src)
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // runTopic is watch on a Kafka topic: from --start (newest by default)
@@ -116,7 +120,7 @@ func (c *watchCmd) runTopic(ctx context.Context, std IO) error {
 	if c.forDur > 0 {
 		src = newUntilSource(ks, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	return present(ctx, std, cfg, src)
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // replayCmd is `bitsift replay`: archives paced on the screen, or read to
@@ -126,6 +130,7 @@ type replayCmd struct {
 	topic     topicFlags
 	speed     string
 	keepOrder bool
+	out       outputFlags
 }
 
 func newReplayCmd(std IO) *cobra.Command {
@@ -157,16 +162,33 @@ at the given speed and prints the text report.`,
 	fs := cmd.Flags()
 	fs.StringVar(&c.speed, "speed", "max", `"max", or N times the records' original pace (e.g. 1, 10, 0.5)`)
 	fs.BoolVar(&c.keepOrder, "keep-order", false, "read the files in the order given, not by their first timestamps")
+	c.out.register(cmd)
 	return cmd
 }
 
 func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
+	if isProf, err := profileInputs(paths); err != nil || isProf {
+		if err != nil {
+			return err
+		}
+		p, err := mergedProfile(std, paths)
+		if err != nil {
+			return err
+		}
+		if !std.IsTerminal {
+			return reportProfile(std, p, "text", "")
+		}
+		return showProfileScreen(ctx, std, p, strings.Join(paths, " "))
+	}
 	speed, err := parse.ParseSpeed(c.speed)
 	if err != nil {
 		return usage("replay: --%v", err)
 	}
 	cfg, err := c.config()
 	if err != nil {
+		return err
+	}
+	if err := c.out.check(); err != nil {
 		return err
 	}
 	format := cfg.Format
@@ -177,7 +199,7 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return usage("replay: %v", err)
 	}
-	return present(ctx, std, cfg, r)
+	return c.out.show(ctx, std, cfg, r)
 }
 
 // runTopic is replay on a Kafka topic: the records it holds from --start
@@ -212,34 +234,7 @@ func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
 			return usage("replay: %v", err)
 		}
 	}
-	return present(ctx, std, cfg, src)
-}
-
-// present shows src on the screen, or reads it into the text report
-// when standard output is not a terminal.
-func present(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, src)
-	}
-	return showScreen(ctx, std, cfg, src)
-}
-
-// printReport reads src to its end (or until ctx is done: an interrupted
-// follow still reports what it read) and prints the text report.
-func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
-	defer src.Close()
-	in, err := ingest.New(cfg)
-	if err != nil {
-		return &ExitError{Code: ExitUsage, Err: err}
-	}
-	in.AddSource(src.Status().Name)
-	selfStopping.Store(true)
-	readErr := in.ReadSource(ctx, src)
-	if errors.Is(readErr, context.Canceled) || errors.Is(readErr, context.DeadlineExceeded) {
-		readErr = nil
-	}
-	// An interrupt is how a headless watch ends: the report follows it.
-	return writeReport(context.WithoutCancel(ctx), std, in, "text", readErr)
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // watchWindow is watch's default window: the last 100,000 records, as on

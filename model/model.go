@@ -91,6 +91,7 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+	batch        batchState
 	// lastDetWork is the work the last determinant search did (tests).
 	lastDetWork int
 
