@@ -103,6 +103,9 @@ type Worker struct {
 	id  string // in file names: host, process and a random part
 	cl  *kgo.Client
 	adm *kadm.Client
+	// ready is closed once cl and adm are set: kgo.NewClient starts joining
+	// the group before it returns, so adjust may run before then.
+	ready chan struct{}
 
 	mu sync.Mutex // the state below; held by the poll loop and the group callbacks
 	// proto has chosen format and companions (from the first records);
@@ -152,7 +155,7 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &Worker{opt: opt, id: workerID(), segs: map[int32]*Segment{}, next: map[int32]int64{}, commits: map[int32]int64{}}
+	w := &Worker{opt: opt, id: workerID(), segs: map[int32]*Segment{}, next: map[int32]int64{}, commits: map[int32]int64{}, ready: make(chan struct{})}
 	reset := kgo.NewOffset().AtStart()
 	if opt.Start.Kind == "newest" {
 		reset = kgo.NewOffset().AtEnd()
@@ -176,6 +179,7 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 		return nil, err
 	}
 	w.adm = kadm.NewClient(w.cl)
+	close(w.ready)
 	return w, nil
 }
 
@@ -405,6 +409,11 @@ func (w *Worker) commit(ctx context.Context) error {
 // committed, or the log's start when retention has deleted records past
 // it (those records are missing: merge reports the gap).
 func (w *Worker) adjust(ctx context.Context, offs map[string]map[int32]kgo.Offset) (map[string]map[int32]kgo.Offset, error) {
+	select {
+	case <-w.ready:
+	case <-ctx.Done():
+		return offs, ctx.Err()
+	}
 	starts, err := w.adm.ListStartOffsets(ctx, w.opt.Topic)
 	w.mu.Lock()
 	defer w.mu.Unlock()
