@@ -472,6 +472,15 @@ func (m Model) nextWindow() (tea.Model, tea.Cmd) {
 	}
 	m.feed.SetWindow(next)
 	m.pendingWindow = &next
+	if f := m.e.frame; f != nil && windowGrows(cur, next) {
+		// A larger window starts from the records the window holds:
+		// those that already left it are gone, and the screen says so.
+		left := f.Source.Lines - int64(f.Snap.Records) - f.Snap.Input.Rejected
+		if left > 0 {
+			m.say("window " + windowName(next) + ": starts from the " + count(int64(f.Snap.Records)) +
+				" records held; " + count(left) + " earlier ones already left and are not counted")
+		}
+	}
 	if m.paused {
 		return m, nil
 	}
@@ -613,4 +622,16 @@ func maxWidth(s string) int {
 		w = max(w, sanitize.Width(ansiStrip(l)))
 	}
 	return w
+}
+
+// windowGrows says whether next may hold more records than cur: the
+// records cur let go cannot come back.
+func windowGrows(cur, next model.Window) bool {
+	switch {
+	case next.Kind == model.WindowAll:
+		return cur.Kind != model.WindowAll
+	case cur.Kind == model.WindowRecords && next.Kind == model.WindowRecords:
+		return next.Records > cur.Records
+	}
+	return cur.Kind != next.Kind
 }
