@@ -16,7 +16,7 @@ import (
 )
 
 // run drives the root command in process.
-func run(t *testing.T, stdin string, args ...string) (int, string, string) {
+func run(t testing.TB, stdin string, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	code := Run(context.Background(), args, IO{In: strings.NewReader(stdin), Out: &out, Err: &errb})

@@ -63,6 +63,7 @@ func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Sourc
 	}
 	in.SetBaseline(base)
 	in.AddSource(src.Status().Name)
+	selfStopping.Store(true)
 	readErr := in.ReadSource(ctx, src)
 	if errors.Is(readErr, context.Canceled) || errors.Is(readErr, context.DeadlineExceeded) {
 		readErr = nil
@@ -70,9 +71,6 @@ func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Sourc
 	if err := checkBaseline(in, base); err != nil {
 		return err
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, buildReport(in, snap), format); err != nil {
-		return writeError(err)
-	}
-	return inputError(readErr, snap)
+	// An interrupt is how a headless watch ends: the report follows it.
+	return writeReport(context.WithoutCancel(ctx), std, in, format, readErr, nil)
 }

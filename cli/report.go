@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -163,25 +164,47 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err := checkBaseline(in, base); err != nil {
 		return err
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
+	if c.live.follow {
+		// An interrupt is how a follow ends: the report of what was read
+		// follows it.
+		ctx = context.WithoutCancel(ctx)
+	}
 	if c.prof.out != "" {
 		if err := writeLogProfile(in, cfg, paths, c.prof); err != nil {
 			return err
 		}
 	}
-	rep := buildReport(in, snap)
+	var more func(*report.Report, *model.Snapshot) error
 	if c.by != "" {
-		if err := c.groups(ctx, rep, snap, cfg, base, paths); err != nil {
+		more = func(rep *report.Report, snap *model.Snapshot) error {
+			return c.groups(ctx, rep, snap, cfg, base, paths)
+		}
+	}
+	return writeReport(ctx, std, in, c.output, readErr, more)
+}
+
+// writeReport takes the final snapshot and writes the report whole, unless
+// ctx ends first; then the exit code says what the input was worth. more,
+// when not nil, adds to the report before it is written (--by's groups).
+func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error, more func(*report.Report, *model.Snapshot) error) error {
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
+	if err != nil {
+		return err
+	}
+	rep := buildReport(in, snap)
+	if more != nil {
+		if err := more(rep, snap); err != nil {
 			return err
 		}
 	}
-	if err := report.Write(std.Out, rep, c.output); err != nil {
+	var out bytes.Buffer
+	if err := report.Write(&out, rep, format); err != nil {
 		return writeError(err)
 	}
-	if err := readNotes(std, in); err != nil {
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
 		return err
 	}
-	return inputError(readErr, snap)
+	return outcome(std, in, readErr, snap)
 }
 
 // runProfiles reports on profiles instead of logs: their counts added.
@@ -218,12 +241,4 @@ func inputError(err error, snap *model.Snapshot) error {
 		code = ExitUnreadable
 	}
 	return &ExitError{Code: code, Err: err}
-}
-
-// writeError treats a closed pipe (bitsift report | head) as a quiet end.
-func writeError(err error) error {
-	if isBrokenPipe(err) {
-		return &ExitError{Code: ExitOK, Err: errQuiet}
-	}
-	return err
 }

@@ -2,6 +2,7 @@ package cli
 
 import (
 	"context"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -129,6 +130,19 @@ at the given speed and prints the text report.`,
 }
 
 func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
+	if isProf, err := profileInputs(paths); err != nil || isProf {
+		if err != nil {
+			return err
+		}
+		p, err := mergedProfile(paths)
+		if err != nil {
+			return err
+		}
+		if !std.IsTerminal {
+			return reportProfile(std, p, "text", "")
+		}
+		return showProfileScreen(ctx, std, p, strings.Join(paths, " "))
+	}
 	speed, err := parse.ParseSpeed(c.speed)
 	if err != nil {
 		return usage("replay: --%v", err)

@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"math"
 	"time"
 
@@ -82,12 +83,17 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+	batch        batchState
 	// lastDetWork is the work the last determinant search did (tests).
 	lastDetWork int
 
 	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
 	synthetic map[string]Synthetic
 	base      baselines
+
+	// ctx is the context of the snapshot being taken (SnapshotContext);
+	// nil otherwise.
+	ctx context.Context
 }
 
 // New returns an empty model.

@@ -289,7 +289,7 @@ func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 		}
 	}
 	for _, p := range m.pairs {
-		h := entropyFromS(n, p.m.s)
+		h := entropyFromS(n, p.m.sum())
 		s.joint[p.a][p.b] = h
 		s.joint[p.b][p.a] = h
 	}
