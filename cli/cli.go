@@ -92,7 +92,7 @@ terminal), or prints the demo's report (otherwise).`,
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &ExitError{Code: ExitUsage, Err: fmt.Errorf("%w (see %s --help)", err, c.CommandPath())}
 	})
-	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std), newSQLCmd(std))
+	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std), newSQLCmd(std), newWorkerCmd(std))
 	return root
 }
 

@@ -79,6 +79,7 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
+	topic    topicFlags
 	live     followFlags
 	output   string
 	baseline baselineFlag
@@ -103,8 +104,10 @@ come for --idle, or it is interrupted; then it prints the report.`,
   kubectl logs deploy/api | bitsift report -
   bitsift report --follow --idle 4s -o json /var/log/app.log
   bitsift report -o json monday.log > base.json
-  bitsift report --baseline base.json tuesday.log`,
-		Args: cobra.MinimumNArgs(1),
+  bitsift report --baseline base.json tuesday.log
+  bitsift report --brokers kafka-1:9092 --topic app-logs --start 1h -o json
+  bitsift report --brokers kafka-1:9092 --topic app-logs --follow --for 10m`,
+		Args: c.topic.args("report", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if isProf, err := profileInputs(args); err != nil || isProf {
 				if err != nil {
@@ -117,6 +120,7 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	}
 	c.register(cmd, "all")
 	c.live.register(cmd)
+	c.topic.register(cmd, "oldest")
 	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	c.baseline.register(cmd)
@@ -149,7 +153,9 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	in.Model().SetBaseline(base)
 	var readErr error
-	if c.live.follow {
+	if c.topic.on() {
+		readErr = c.readTopic(ctx, in, cfg.MaxLine)
+	} else if c.live.follow {
 		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
 	} else {
 		if err := c.live.check(); err != nil {
@@ -215,11 +221,14 @@ func (c *reportCmd) runProfiles(cmd *cobra.Command, std IO, args []string) error
 	if err := unusedWithProfiles(cmd, "follow", "format", "pattern", "window", "redact", "redact-fields", "redact-key", "baseline", "analyse-time"); err != nil {
 		return err
 	}
-	p, err := mergedProfile(args)
+	p, err := mergedProfile(std, args)
 	if err != nil {
 		return err
 	}
-	return reportProfile(std, p, c.output, c.prof.out)
+	if err := reportProfile(std, p, c.output, c.prof.out); err != nil {
+		return err
+	}
+	return missingError(p)
 }
 
 func validOutput(o string) bool {

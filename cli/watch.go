@@ -15,6 +15,7 @@ import (
 // not a terminal.
 type watchCmd struct {
 	streamFlags
+	topic       topicFlags
 	fromStart   bool
 	lines       int
 	rotateGrace time.Duration
@@ -40,12 +41,18 @@ for --idle, then prints the text report.`,
 		Example: `  bitsift watch /var/log/app.log
   bitsift watch --from-start --rotate-grace 5s /var/log/app.log
   bitsift demo --rate 2000 --lines 0 | bitsift watch -
-  bitsift watch --from-start --idle 10s app.log > report.txt`,
-		Args: cobra.ExactArgs(1),
+  bitsift watch --from-start --idle 10s app.log > report.txt
+  bitsift watch --brokers kafka-1:9092 --topic app-logs
+  bitsift watch --brokers kafka-1:9093 --tls --sasl scram-sha-512 --sasl-file kafka.cred --topic app-logs --start 15m`,
+		Args: c.topic.args("watch", 1, 1),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if c.topic.on() {
+				return c.runTopic(cmd.Context(), std)
+			}
 			return c.run(cmd.Context(), std, args[0])
 		},
 	}
+	c.topic.register(cmd, "newest")
 	// A live stream has no end: a bounded window keeps memory bounded.
 	c.register(cmd, watchWindow)
 	fs := cmd.Flags()
@@ -92,10 +99,35 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	return c.out.show(ctx, std, cfg, src)
 }
 
+// runTopic is watch on a Kafka topic: from --start (newest by default)
+// on, until interrupted, --for or --idle.
+func (c *watchCmd) runTopic(ctx context.Context, std IO) error {
+	switch {
+	case c.fromStart || c.lines != 0 || c.poll:
+		return usage("watch: --from-start, --lines and --poll are for files; give --start with --topic")
+	case c.forDur < 0 || c.idle < 0:
+		return usage("watch: --for and --idle must not be negative")
+	}
+	cfg, err := c.config()
+	if err != nil {
+		return err
+	}
+	ks, err := c.topic.open(ctx, false, c.idle, cfg.MaxLine)
+	if err != nil {
+		return err
+	}
+	var src parse.Source = ks
+	if c.forDur > 0 {
+		src = newUntilSource(ks, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
+	}
+	return c.out.show(ctx, std, cfg, src)
+}
+
 // replayCmd is `bitsift replay`: archives paced on the screen, or read to
 // their end into a text report when standard output is not a terminal.
 type replayCmd struct {
 	streamFlags
+	topic     topicFlags
 	speed     string
 	keepOrder bool
 	out       outputFlags
@@ -115,12 +147,17 @@ screen, space pauses the replay and n lets one window of records through.
 When standard output is not a terminal, replay reads the files to their end
 at the given speed and prints the text report.`,
 		Example: `  bitsift replay app.log.2.gz app.log.1.gz app.log
-  bitsift replay --speed 20 --window 5m yesterday.log.zst`,
-		Args: cobra.MinimumNArgs(1),
+  bitsift replay --speed 20 --window 5m yesterday.log.zst
+  bitsift replay --brokers kafka-1:9092 --topic app-logs --start 2026-12-01T22:00:00Z`,
+		Args: c.topic.args("replay", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if c.topic.on() {
+				return c.runTopic(cmd.Context(), std)
+			}
 			return c.run(cmd.Context(), std, args)
 		},
 	}
+	c.topic.register(cmd, "oldest")
 	c.register(cmd, "all")
 	fs := cmd.Flags()
 	fs.StringVar(&c.speed, "speed", "max", `"max", or N times the records' original pace (e.g. 1, 10, 0.5)`)
@@ -134,7 +171,7 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 		if err != nil {
 			return err
 		}
-		p, err := mergedProfile(paths)
+		p, err := mergedProfile(std, paths)
 		if err != nil {
 			return err
 		}
@@ -163,6 +200,41 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 		return usage("replay: %v", err)
 	}
 	return c.out.show(ctx, std, cfg, r)
+}
+
+// runTopic is replay on a Kafka topic: the records it holds from --start
+// (oldest by default) to the end offsets it had when replay began, as fast
+// as they can be read or paced by the records' timestamps (--speed N;
+// partitions come interleaved as they are fetched, so the pace follows
+// the records' times only roughly).
+func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
+	speed, err := parse.ParseSpeed(c.speed)
+	switch {
+	case err != nil:
+		return usage("replay: --%v", err)
+	case c.keepOrder:
+		return usage("replay: --keep-order is for files")
+	}
+	cfg, err := c.config()
+	if err != nil {
+		return err
+	}
+	ks, err := c.topic.open(ctx, true, 0, cfg.MaxLine)
+	if err != nil {
+		return err
+	}
+	var src parse.Source = ks
+	if speed > 0 {
+		format := cfg.Format
+		if format == "pattern" {
+			format = ""
+		}
+		if src, err = parse.NewSourceReplayer(ks, parse.ReplayOptions{Speed: speed, Format: format, MaxLine: cfg.MaxLine}); err != nil {
+			ks.Close()
+			return usage("replay: %v", err)
+		}
+	}
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // watchWindow is watch's default window: the last 100,000 records, as on
