@@ -13,7 +13,7 @@ import (
 	"github.com/spf13/cobra"
 )
 
-// Exit codes, as documented in the README.
+// Exit codes, as documented in the README (more in exit.go).
 const (
 	ExitOK         = 0 // fine
 	ExitUsage      = 1 // bad flags or arguments
@@ -56,7 +56,7 @@ func Run(ctx context.Context, args []string, std IO) int {
 		return ee.Code
 	}
 	if errors.Is(err, context.Canceled) {
-		return ExitOK
+		return interrupted(ctx, std)
 	}
 	fmt.Fprintln(std.Err, "bitsift:", err)
 	return ExitUsage

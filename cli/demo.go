@@ -3,6 +3,7 @@ package cli
 import (
 	"bufio"
 	"context"
+	"math"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -48,6 +49,9 @@ calls fail and slow down.`,
 }
 
 func (c *demoCmd) run(ctx context.Context, std IO) error {
+	if !(c.rate >= 0) || math.IsInf(c.rate, 1) || c.lines < 0 { // NaN fails every comparison
+		return usage("demo: --rate must be a number of lines per second, 0 or more, and --lines 0 or more")
+	}
 	w := bufio.NewWriterSize(std.Out, 64<<10)
 	g := demo.New(c.seed, c.lines)
 	var tick *time.Ticker

@@ -1,10 +1,12 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 	"strings"
 
@@ -85,8 +87,8 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if c.emit != "" && !oneOf(c.emit, planEmits) {
 		return usage("plan: unknown --emit %q (use one of %s)", c.emit, strings.Join(planEmits, ", "))
 	}
-	if c.maxLoss < 0 {
-		return usage("plan: --max-loss must be 0 or more bits per record")
+	if !(c.maxLoss >= 0) || math.IsInf(c.maxLoss, 1) { // NaN fails every comparison
+		return usage("plan: --max-loss must be a number of bits per record, 0 or more")
 	}
 	cfg, err := c.config()
 	if err != nil {
@@ -114,7 +116,10 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{})
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{})
+	if err != nil {
+		return err
+	}
 	if smp != nil {
 		smp.Keep(snap.Records)
 	}
@@ -123,7 +128,7 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	if snap.Records == 0 {
-		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
+		return outcome(std, in, readErr, snap)
 	}
 	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != ""}
 	if smp != nil {
@@ -135,6 +140,9 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		p.Notes = append(p.Notes, "not measured and not verified: --redact keeps no raw lines, so the saving is the model's estimate")
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
 		return &ExitError{Code: ExitUnreadable, Err: err}
+	}
+	if err := ctx.Err(); err != nil {
+		return err // interrupted while measuring: nothing is written
 	}
 	write := func(w io.Writer) error {
 		switch {
@@ -151,10 +159,16 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	if c.out != "" {
 		if err := plan.WriteFile(c.out, write); err != nil {
-			return &ExitError{Code: ExitUnreadable, Err: err}
+			return &ExitError{Code: ExitWrite, Err: err}
 		}
-	} else if err := write(std.Out); err != nil {
+		return inputError(readErr, snap)
+	}
+	var out bytes.Buffer
+	if err := write(&out); err != nil {
 		return writeError(err)
+	}
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
 	}
 	return inputError(readErr, snap)
 }
@@ -199,12 +213,4 @@ func oneOf(v string, set []string) bool {
 		}
 	}
 	return false
-}
-
-// inputErrorOr is inputError, or alt when the input read cleanly.
-func inputErrorOr(readErr error, snap *model.Snapshot, alt error) error {
-	if err := inputError(readErr, snap); err != nil {
-		return err
-	}
-	return alt
 }

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -154,19 +155,34 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
+	if c.live.follow {
+		// An interrupt is how a follow ends: the report of what was read
+		// follows it.
+		ctx = context.WithoutCancel(ctx)
+	}
 	if c.prof.out != "" {
 		if err := writeLogProfile(in, cfg, paths, c.prof); err != nil {
 			return err
 		}
 	}
-	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
-		return writeError(err)
-	}
-	if err := readNotes(std, in); err != nil {
+	return writeReport(ctx, std, in, c.output, readErr)
+}
+
+// writeReport takes the final snapshot and writes the report whole, unless
+// ctx ends first; then the exit code says what the input was worth.
+func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error) error {
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
+	if err != nil {
 		return err
 	}
-	return inputError(readErr, snap)
+	var out bytes.Buffer
+	if err := report.Write(&out, report.Build(snap), format); err != nil {
+		return writeError(err)
+	}
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
+	}
+	return outcome(std, in, readErr, snap)
 }
 
 // runProfiles reports on profiles instead of logs: their counts added.
@@ -203,12 +219,4 @@ func inputError(err error, snap *model.Snapshot) error {
 		code = ExitUnreadable
 	}
 	return &ExitError{Code: code, Err: err}
-}
-
-// writeError treats a closed pipe (bitsift report | head) as a quiet end.
-func writeError(err error) error {
-	if isBrokenPipe(err) {
-		return &ExitError{Code: ExitOK, Err: errQuiet}
-	}
-	return err
 }

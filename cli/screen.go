@@ -3,6 +3,7 @@ package cli
 import (
 	"context"
 	"errors"
+	"time"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
@@ -25,8 +26,18 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	in.UseRollingBaseline()
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
+	selfStopping.Store(true) // the screen restores the terminal, then ends
 	live := ui.StartLive(ctx, in, src)
-	defer live.Stop()
+	defer func() {
+		// A snapshot being taken gives up when ctx ends (the deep
+		// analyses look at it as they go); the process is ending, so it
+		// waits only briefly for that: quitting never waits for them.
+		cancel()
+		select {
+		case <-live.Done():
+		case <-time.After(quitWait):
+		}
+	}()
 
 	r := lipgloss.NewRenderer(std.Out)
 	// Ask the terminal for its background now, before the screen reads
@@ -51,6 +62,9 @@ func showScreen(ctx context.Context, std IO, cfg ingest.Config, src parse.Source
 	}
 	return err
 }
+
+// quitWait is how long quitting waits for the live reader to stop.
+const quitWait = 50 * time.Millisecond
 
 func containsWindow(ws []ui.Window, w ui.Window) bool {
 	for _, x := range ws {

@@ -8,9 +8,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"bitsift/ingest"
-	"bitsift/model"
 	"bitsift/parse"
-	"bitsift/report"
 )
 
 // watchCmd is `bitsift watch`: a live file (or stdin) followed across
@@ -160,15 +158,13 @@ func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Sourc
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
 	in.AddSource(src.Status().Name)
+	selfStopping.Store(true)
 	readErr := in.ReadSource(ctx, src)
 	if errors.Is(readErr, context.Canceled) || errors.Is(readErr, context.DeadlineExceeded) {
 		readErr = nil
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, report.Build(snap), "text"); err != nil {
-		return writeError(err)
-	}
-	return inputError(readErr, snap)
+	// An interrupt is how a headless watch ends: the report follows it.
+	return writeReport(context.WithoutCancel(ctx), std, in, "text", readErr)
 }
 
 // watchWindow is watch's default window: the last 100,000 records, as on

@@ -112,13 +112,16 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
 // takeBatch takes b's lines in order: faults are recorded, the records of
 // a parsed batch go to the model together (model.Model.AddBatch), the
 // lines of an unparsed one through take. between (when not nil) is called
-// every chunkLines lines, so that the live owner can answer requests. It
+// every chunkLines lines, so that the live owner can answer requests; when
+// it returns false the rest is left (the live runner is stopping). It
 // returns the first fault.
-func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
+func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 	for i := range b.lines {
 		if between != nil && i%chunkLines == chunkLines-1 {
 			in.flushRecords()
-			between()
+			if !between() {
+				return first // stopping: the rest is not wanted
+			}
 		}
 		l := &b.lines[i]
 		if l.err != nil {

@@ -412,7 +412,17 @@ func (in *Ingester) Flush() {
 
 // Snapshot takes a snapshot of the model with the input accounting.
 func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
-	s := in.model.Snapshot(opt)
+	s, _ := in.SnapshotContext(context.Background(), opt)
+	return s
+}
+
+// SnapshotContext is Snapshot, given up when ctx is done (see
+// model.Model.SnapshotContext): the error is then ctx's.
+func (in *Ingester) SnapshotContext(ctx context.Context, opt model.SnapshotOptions) (*model.Snapshot, error) {
+	s, err := in.model.SnapshotContext(ctx, opt)
+	if err != nil {
+		return nil, err
+	}
 	in.labelTemplates(s)
 	s.Input = in.input
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
@@ -420,7 +430,7 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s.Input.Faults = append([]string(nil), in.input.Faults...)
 	s.Input.Events = append([]parse.SourceEvent(nil), in.input.Events...)
 	s.Input.TimeField, s.Input.TimeFormat = in.times.Key(), in.times.Format()
-	return s
+	return s, nil
 }
 
 // TimeKey is the timestamp field found in the stream, "" if none.

@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"math"
 	"time"
 
@@ -89,6 +90,10 @@ type Model struct {
 	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
 	synthetic map[string]Synthetic
 	base      baselines
+
+	// ctx is the context of the snapshot being taken (SnapshotContext);
+	// nil otherwise.
+	ctx context.Context
 }
 
 // New returns an empty model.

@@ -147,6 +147,9 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	totals := make([]float64, rows)
 	var col, gcol []uint32
 	for j, c := range costs {
+		if m.cancelled() {
+			return []SurprisingRecord{}
+		}
 		col = m.st.column(c.idx, lo, m.st.n, col)
 		if c.given >= 0 {
 			gcol = m.st.column(c.given, lo, m.st.n, gcol)

@@ -50,7 +50,8 @@ func ParseSpeed(s string) (float64, error) {
 		return 0, nil
 	}
 	f, err := strconv.ParseFloat(strings.TrimSuffix(s, "x"), 64)
-	if err != nil || f <= 0 || f > 1e9 {
+	if err != nil || !(f > 0 && f <= 1e9) { // NaN fails both
+
 		return 0, fmt.Errorf("speed %q: use max or a factor above 0 such as 1, 10 or 0.5", s)
 	}
 	return f, nil

@@ -44,6 +44,7 @@ const (
 	StateWaiting   SourceState = "waiting"   // waiting for a file to appear
 	StatePaused    SourceState = "paused"    // a replay paused by the user
 	StateDone      SourceState = "done"      // every input read to its end
+	StateFailed    SourceState = "failed"    // stopped by a fault (listed in Events)
 )
 
 // SourceStatus describes a source at one moment.
@@ -80,8 +81,10 @@ type FileSource struct {
 	name  string
 
 	statusBox
-	count *countingReader
-	buf   *bufio.Reader // between count and the decompressor
+	ctx      context.Context // of the Next call under way: reads give up when it ends
+	stopRead func() bool     // undoes the context's hold on the open file
+	count    *countingReader
+	buf      *bufio.Reader // between count and the decompressor
 }
 
 // NewFileSource reads paths in order with lines of at most maxLine bytes.
@@ -127,6 +130,7 @@ func itoa(n int) string {
 
 // Next implements Source.
 func (fs *FileSource) Next(ctx context.Context) (Line, error) {
+	fs.ctx = ctx
 	for {
 		if err := ctx.Err(); err != nil {
 			return Line{}, err
@@ -138,7 +142,10 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 			}
 			p := fs.paths[fs.idx]
 			fs.idx++
-			if err := fs.open(p); err != nil {
+			if err := fs.open(ctx, p); err != nil {
+				if ctx.Err() != nil {
+					return Line{}, ctx.Err()
+				}
 				fs.event("fault", p+": "+err.Error())
 				return Line{}, &SourceError{Source: p, Err: err}
 			}
@@ -153,6 +160,11 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 			return Line{Num: num, Source: fs.name, TooLong: true}, nil
 		case errors.Is(err, io.EOF):
 			fs.closeCur()
+		case ctx.Err() != nil:
+			// Interrupted in a read (a stream with no newline, a quiet
+			// FIFO): not a fault of the input.
+			fs.closeCur()
+			return Line{}, ctx.Err()
 		default:
 			name := fs.name
 			// The stored file's offset of the fault: what was read from
@@ -166,7 +178,7 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 	}
 }
 
-func (fs *FileSource) open(p string) error {
+func (fs *FileSource) open(ctx context.Context, p string) error {
 	var raw io.ReadCloser
 	if p == "-" {
 		in := fs.Stdin
@@ -175,10 +187,13 @@ func (fs *FileSource) open(p string) error {
 		}
 		raw = io.NopCloser(in)
 	} else {
-		f, err := os.Open(p)
+		f, err := openCancellable(ctx, p)
 		if err != nil {
 			return explainOpen(err)
 		}
+		// A read from a FIFO or socket that waits for data ends when ctx
+		// does (regular files take no deadline, and do not wait).
+		fs.stopRead = context.AfterFunc(ctx, func() { f.SetReadDeadline(time.Now()) })
 		raw = f
 	}
 	fs.count = &countingReader{r: raw, fs: fs}
@@ -194,6 +209,10 @@ func (fs *FileSource) open(p string) error {
 }
 
 func (fs *FileSource) closeCur() {
+	if fs.stopRead != nil {
+		fs.stopRead()
+		fs.stopRead = nil
+	}
 	if fs.cur != nil {
 		fs.cur.Close()
 	}
@@ -243,6 +262,11 @@ type countingReader struct {
 }
 
 func (c *countingReader) Read(p []byte) (int, error) {
+	if ctx := c.fs.ctx; ctx != nil && ctx.Err() != nil {
+		// A stream with no newline (/dev/zero) is read without end while
+		// the line is dropped as too long: it stops here.
+		return 0, ctx.Err()
+	}
 	n, err := c.r.Read(p)
 	c.n += int64(n)
 	c.fs.mu.Lock()

@@ -73,6 +73,17 @@ func addChanges(r *Report, s *model.Snapshot) {
 	r.DeterminantsCut = s.DeterminantsCut
 	r.DeepRecords = s.DeepRecords
 	r.Profile = s.Profile
+	if p := r.Profile; p != nil && (p.Fields == nil || p.Rules == nil) {
+		// Lists are never null in JSON, also with no records.
+		c := *p
+		if c.Fields == nil {
+			c.Fields = []model.FieldProfile{}
+		}
+		if c.Rules == nil {
+			c.Rules = []model.Rule{}
+		}
+		r.Profile = &c
+	}
 	for _, d := range s.Determinants {
 		r.Determinants = append(r.Determinants, Determinant{d.Target, d.Given, round(d.Bits), round(d.RFI), d.EMIApprox})
 	}

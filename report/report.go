@@ -147,6 +147,7 @@ func Build(s *model.Snapshot) *Report {
 		LeftOutFields: s.LeftOutFields,
 	}
 	r.Events = []Event{}
+	r.Fields = []Field{} // never null in JSON, also with no records
 	for _, e := range s.Input.Events {
 		r.Events = append(r.Events, Event{Time: e.Time.UTC().Format(time.RFC3339Nano), Kind: e.Kind, Detail: e.Detail})
 	}
