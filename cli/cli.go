@@ -67,6 +67,7 @@ var errQuiet = errors.New("already reported")
 
 // NewRoot returns the root command with every subcommand.
 func NewRoot(std IO) *cobra.Command {
+	out := &outputFlags{}
 	root := &cobra.Command{
 		Use:   "bitsift",
 		Short: "Measure how much information each field of a log stream carries",
@@ -81,16 +82,17 @@ terminal), or prints the demo's report (otherwise).`,
 		SilenceErrors: true,
 		Args:          cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return runDefault(cmd.Context(), std)
+			return runDefault(cmd.Context(), std, out)
 		},
 	}
+	out.register(root)
 	root.SetIn(std.In)
 	root.SetOut(std.Out)
 	root.SetErr(std.Err)
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &ExitError{Code: ExitUsage, Err: fmt.Errorf("%w (see %s --help)", err, c.CommandPath())}
 	})
-	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std))
+	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std), newSQLCmd(std), newWorkerCmd(std))
 	return root
 }
 

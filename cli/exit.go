@@ -103,7 +103,7 @@ func outcome(std IO, in *ingest.Ingester, readErr error, snap *model.Snapshot) e
 	if err := inputError(readErr, snap); err != nil {
 		return err
 	}
-	if err := readNotes(std, in); err != nil {
+	if err := readNotes(std, in, readErr); err != nil {
 		return err
 	}
 	return noRecords(snap)

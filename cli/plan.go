@@ -22,7 +22,7 @@ import (
 // planOutputs and planEmits are the values of plan's -o and --emit.
 var (
 	planOutputs = []string{"text", "json", "html"}
-	planEmits   = []string{"jq", "otel"}
+	planEmits   = plan.Emits
 )
 
 type planCmd struct {
@@ -32,6 +32,7 @@ type planCmd struct {
 	output     string
 	emit       string
 	out        string
+	tables     string
 }
 
 func newPlanCmd(std IO) *cobra.Command {
@@ -67,6 +68,7 @@ regulations may require: check your retention obligations first.`,
 	fs.StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(planOutputs, ", "))
 	fs.StringVar(&c.emit, "emit", "", "print a program that applies the plan instead: "+strings.Join(planEmits, ", "))
 	fs.StringVar(&c.out, "out", "", "write the output to FILE (whole or not at all) instead of stdout")
+	fs.StringVar(&c.tables, "tables", "", "also write the constants and mapping tables to FILE as CSV, for a lookup at query time")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return planOutputs, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -89,6 +91,12 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	}
 	if !(c.maxLoss >= 0) || math.IsInf(c.maxLoss, 1) { // NaN fails every comparison
 		return usage("plan: --max-loss must be a number of bits per record, 0 or more")
+	}
+	if isProf, err := profileInputs(paths); err != nil || isProf {
+		if err != nil {
+			return err
+		}
+		return c.runProfiles(ctx, std, paths)
 	}
 	cfg, err := c.config()
 	if err != nil {
@@ -134,6 +142,13 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if smp != nil {
 		opts.Batch = smp.Len()
 	}
+	if c.emit != "" && !plan.Fits(c.emit, snap.Input.Format) {
+		return usage("plan: --emit %s cannot process %s records; the exports that fit this input: %s",
+			c.emit, snap.Input.Format, strings.Join(plan.EmitsFor(snap.Input.Format), ", "))
+	}
+	if smp == nil && (c.emit == plan.EmitJQRestore || c.emit == plan.EmitJQRecords || c.emit == plan.EmitOTelRecords || c.tables != "") {
+		return usage("plan: --redact keeps no raw lines, so there are no tables or record classes to write (--emit jq-restore, jq-records, otel-records, --tables)")
+	}
 	var p *plan.Plan
 	if smp == nil {
 		p = plan.Choose(snap, opts)
@@ -144,18 +159,54 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err := ctx.Err(); err != nil {
 		return err // interrupted while measuring: nothing is written
 	}
+	return c.write(ctx, std, snap, p, readErr)
+}
+
+// runProfiles plans from profiles: chosen from the counts alone, as a
+// profile keeps no raw line to measure on or rebuild.
+func (c *planCmd) runProfiles(ctx context.Context, std IO, paths []string) error {
+	prof, err := mergedProfile(std, paths)
+	if err != nil {
+		return err
+	}
+	snap := prof.Snapshot(model.SnapshotOptions{})
+	pins, err := c.pins(snap)
+	if err != nil {
+		return err
+	}
+	if snap.Records == 0 {
+		return &ExitError{Code: ExitUnreadable, Err: errors.New("plan: the profile counts no records")}
+	}
+	p := plan.Choose(snap, plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: prof.TimeField != ""})
+	p.Notes = append(p.Notes, "not measured and not verified: "+errNoLines.Error()+"; the saving is the model's estimate")
+	return c.write(ctx, std, snap, p, nil)
+}
+
+// write writes the plan as the flags ask.
+func (c *planCmd) write(ctx context.Context, std IO, snap *model.Snapshot, p *plan.Plan, readErr error) error {
 	write := func(w io.Writer) error {
 		switch {
 		case c.emit == "jq":
 			return plan.WriteJQ(w, p)
-		case c.emit == "otel":
+		case c.emit == plan.EmitJQRestore:
+			return plan.WriteJQRestore(w, p)
+		case c.emit == plan.EmitOTel:
 			return plan.WriteOTel(w, p)
+		case c.emit == plan.EmitJQRecords:
+			return plan.WriteJQRecords(w, p)
+		case c.emit == plan.EmitOTelRecords:
+			return plan.WriteOTelRecords(w, p)
 		case c.output == "json":
 			return plan.WriteJSON(w, p)
 		case c.output == "html":
 			return report.WriteHTML(w, report.Build(snap), p)
 		}
 		return plan.WriteText(w, p)
+	}
+	if c.tables != "" {
+		if err := plan.WriteFile(c.tables, func(w io.Writer) error { return plan.WriteTablesCSV(w, p) }); err != nil {
+			return &ExitError{Code: ExitWrite, Err: err}
+		}
 	}
 	if c.out != "" {
 		if err := plan.WriteFile(c.out, write); err != nil {

@@ -3,18 +3,22 @@ package cli
 import (
 	"crypto/rand"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
+	"time"
 
 	"github.com/spf13/cobra"
 
 	"bitsift/ingest"
+	"bitsift/kafka"
 	"bitsift/model"
 	"bitsift/profile"
 	"bitsift/report"
+	"bitsift/sanitize"
 )
 
 // profileFlags are the flags of commands that write a profile.
@@ -141,15 +145,22 @@ func loadProfiles(args []string) ([]*profile.Profile, error) {
 }
 
 // mergedProfile reads and adds the profiles args name.
-func mergedProfile(args []string) (*profile.Profile, error) {
+// A topic's profiles are chained by offset first (merge_topic.go): repeats
+// are left out, said on std.Err, and gaps become faults (missingError).
+func mergedProfile(std IO, args []string) (*profile.Profile, error) {
 	ps, err := loadProfiles(args)
 	if err != nil {
 		return nil, err
 	}
-	if len(ps) == 1 {
-		return ps[0], nil
+	return mergeProfiles(std, ps)
+}
+
+// mergeProfiles adds ps, chaining a topic's profiles by offset first.
+func mergeProfiles(std IO, ps []*profile.Profile) (*profile.Profile, error) {
+	m, notes, err := kafka.Merge(ps)
+	for _, n := range notes {
+		fmt.Fprintln(std.Err, "bitsift: merge:", n)
 	}
-	m, err := profile.Merge(ps)
 	if err != nil {
 		return nil, &ExitError{Code: ExitUsage, Err: err}
 	}
@@ -175,8 +186,9 @@ func reportProfile(std IO, p *profile.Profile, output, out string) error {
 }
 
 type mergeCmd struct {
-	output string
-	out    string
+	output       string
+	out          string
+	since, until string
 }
 
 func newMergeCmd(std IO) *cobra.Command {
@@ -205,6 +217,8 @@ their redaction key (--redact-key FILE); inputs covered twice are refused.`,
 	}
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
 	cmd.Flags().StringVar(&c.out, "profile-out", "", "write the added profile to FILE")
+	cmd.Flags().StringVar(&c.since, "since", "", "add only the profiles whose records all came at or after this time (RFC 3339, 2006-01-02, or a duration ago: 24h)")
+	cmd.Flags().StringVar(&c.until, "until", "", "add only the profiles whose records all came before this time")
 	return cmd
 }
 
@@ -212,11 +226,66 @@ func (c *mergeCmd) run(std IO, args []string) error {
 	if c.output != "" && !validOutput(c.output) {
 		return usage("merge: unknown output format %q (use one of %s)", c.output, strings.Join(report.Formats, ", "))
 	}
-	p, err := mergedProfile(args)
+	now := time.Now()
+	since, err := parseWhen(c.since, now)
+	if err != nil {
+		return usage("merge: --since %v", err)
+	}
+	until, err := parseWhen(c.until, now)
+	if err != nil {
+		return usage("merge: --until %v", err)
+	}
+	ps, err := loadProfiles(args)
 	if err != nil {
 		return err
 	}
-	return reportProfile(std, p, c.output, c.out)
+	if !since.IsZero() || !until.IsZero() {
+		ps = c.within(std, ps, args, since, until)
+		if len(ps) == 0 {
+			return &ExitError{Code: ExitUnreadable, Err: errors.New("merge: no profile lies within --since/--until")}
+		}
+	}
+	p, err := mergeProfiles(std, ps)
+	if err != nil {
+		return err
+	}
+	if err := reportProfile(std, p, c.output, c.out); err != nil {
+		return err
+	}
+	return missingError(p)
+}
+
+// within keeps the profiles whose records all lie in [since, until): a
+// profile's counts cannot be cut, so one that straddles a bound is left
+// out, and said so on standard error.
+func (c *mergeCmd) within(std IO, ps []*profile.Profile, args []string, since, until time.Time) []*profile.Profile {
+	var out []*profile.Profile
+	for _, p := range ps {
+		lo, hi := p.Counts.Oldest, p.Counts.Newest
+		switch {
+		case lo == 0:
+			fmt.Fprintf(std.Err, "bitsift merge: left out a profile of %s: its records have no times\n", coverageOf(p))
+		case (!since.IsZero() && hi < since.UnixNano()) || (!until.IsZero() && lo >= until.UnixNano()):
+			// wholly outside: nothing to say
+		case (!since.IsZero() && lo < since.UnixNano()) || (!until.IsZero() && hi >= until.UnixNano()):
+			fmt.Fprintf(std.Err, "bitsift merge: left out a profile of %s: it spans %s to %s, across the bounds\n",
+				coverageOf(p), time.Unix(0, lo).UTC().Format(time.RFC3339), time.Unix(0, hi).UTC().Format(time.RFC3339))
+		default:
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+func coverageOf(p *profile.Profile) string {
+	if len(p.Coverage) == 0 {
+		return "(no coverage)"
+	}
+	s := p.Coverage[0].String()
+	if len(p.Coverage) > 1 {
+		s += fmt.Sprintf(" and %d more", len(p.Coverage)-1)
+	}
+	return sanitize.String(s)
 }
 
 // unusedWithProfiles lists the flags that mean nothing for a profile and

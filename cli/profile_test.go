@@ -43,6 +43,9 @@ func sliceProfiles(t *testing.T, data []byte, n int, extra ...string) (dir strin
 	t.Helper()
 	dir = t.TempDir()
 	lines := bytes.SplitAfter(data, []byte("\n"))
+	if len(lines[len(lines)-1]) == 0 {
+		lines = lines[:len(lines)-1]
+	}
 	per := (len(lines) + n - 1) / n
 	for i := 0; i < n; i++ {
 		part := bytes.Join(lines[min(i*per, len(lines)):min((i+1)*per, len(lines))], nil)
@@ -179,5 +182,23 @@ func TestMergeRefuses(t *testing.T) {
 	p, err := profile.ReadFile(a)
 	if err != nil || p.Redaction == nil || p.Redaction.KeyID == "" {
 		t.Errorf("redaction not recorded: %v %+v", err, p)
+	}
+}
+
+// TestMergeWithin: --since/--until add only the profiles wholly inside,
+// and say which were left out across a bound.
+func TestMergeWithin(t *testing.T) {
+	dir := sliceProfiles(t, demoLines(4000), 4) // the demo's lines are 0.5 ms apart from 2026-03-14T06:00:00Z
+	// Slices of 1,000 lines: 06:00:00.0–00.4995, 00.5–00.9995, 01.0–…
+	code, js, errs := run(t, "", "merge", "-o", "json", "--since", "2026-03-14T06:00:00.5Z", dir)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if r := figures(t, js); r.Records != 3000 {
+		t.Errorf("merged %d records, want the 3,000 of the last three slices", r.Records)
+	}
+	code, js, errs = run(t, "", "merge", "-o", "json", "--until", "2026-03-14T06:00:00.7Z", dir)
+	if code != 0 || figures(t, js).Records != 1000 || !strings.Contains(errs, "across the bounds") {
+		t.Errorf("--until: exit %d, %.200s, %q", code, js, errs)
 	}
 }

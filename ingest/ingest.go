@@ -64,6 +64,10 @@ type Config struct {
 	Templates []string
 	// Observer, when set, sees what becomes of every line (annotate.go).
 	Observer Observer
+	// Filter, when active, leaves out the records it does not keep
+	// (counted in Input.Filtered), after the companions are added and
+	// before redaction (see filter.go).
+	Filter *Filter
 }
 
 // Ingester turns lines into model records.
@@ -244,6 +248,7 @@ func (in *Ingester) start() {
 	for i, p := range in.pending {
 		texts[i] = p.text
 	}
+	in.learnForced(texts)
 	in.checkForced(texts)
 	if in.format == nil {
 		d, err := parse.Detect(in.detectionSample(texts))
@@ -366,7 +371,9 @@ func (in *Ingester) add(num int64, source string) {
 // While a batch is being taken (holding), the record is copied and held
 // for the batch's AddBatch instead.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
-	in.prepare(rec, num, t, source)
+	if !in.prepare(rec, num, t, source) {
+		return
+	}
 	if !in.holding {
 		in.model.Add(rec, num, t)
 		return
@@ -384,9 +391,17 @@ func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
 
 // prepare adds the companions to a parsed record, redacts it, and shows it
 // to the Observer (which does not read the model, so a batch's records
-// may be shown before the model takes them).
-func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
+// may be shown before the model takes them). It says whether the record
+// is to be taken: false when the filter leaves it out.
+func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) bool {
 	in.comp.Apply(rec)
+	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
+		in.input.Filtered++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Rejected(num, source, "left out by --where, --since or --until")
+		}
+		return false
+	}
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
 		// not redacted (chooseCompanions).
@@ -395,6 +410,7 @@ func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
 	if in.cfg.Observer != nil {
 		in.cfg.Observer.Record(rec, num, source, t)
 	}
+	return true
 }
 
 // endSource closes records left open at the end of a source (CRI partial

@@ -203,3 +203,11 @@ func (m *Model) summarise(f *field, k int) *Summary {
 	}
 	return s
 }
+
+// IsIdentifier is the identifier rule of the model (see identEnter) for a
+// field with distinct values over present records, for callers that
+// classify fields from counts (a database's GROUP BY) before asking for
+// pair tables: an identifier gets a Summary and no pairs.
+func IsIdentifier(distinct, present int64) bool {
+	return present >= identMinPresent && float64(distinct) >= identEnter*float64(present)
+}

@@ -138,6 +138,9 @@ type Input struct {
 	// Parts counts lines held as parts of a record joined from several
 	// lines (CRI partial lines): Lines == records + Rejected + Parts.
 	Parts int64
+	// Filtered counts records left out by --where, --since or --until:
+	// then Lines == records + Rejected + Parts + Filtered.
+	Filtered int64
 	// TimeField and TimeFormat are the stream's timestamp field and its
 	// format (see parse.TimeFinder), "" when none was found.
 	TimeField, TimeFormat string

@@ -57,6 +57,20 @@ type SourceStatus struct {
 	Events     []SourceEvent
 	// Note is a short line for the user (e.g. "gap of 3m12s shortened").
 	Note string
+	// Parts are the partitions of a partitioned source (a Kafka topic),
+	// nil for files.
+	Parts []PartStatus
+}
+
+// PartStatus is one partition of a partitioned source.
+type PartStatus struct {
+	Name     string
+	Position int64 // the next offset to read
+	End      int64 // the log's end (high watermark) as last seen; -1 unknown
+	Lag      int64 // End - Position; -1 unknown
+	Records  int64 // records read from it
+	// Until is where a bounded read stops (report, replay); -1 none.
+	Until int64
 }
 
 // SourceEvent is something that happened to an input: rotation,

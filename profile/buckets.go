@@ -43,18 +43,31 @@ func NewBuckets(times []int64) *Buckets {
 	if lo == 0 {
 		return nil
 	}
-	w := int64(bucketWidths[len(bucketWidths)-1])
-	for _, d := range bucketWidths {
-		if (hi-lo)/int64(d) < maxBuckets {
-			w = int64(d)
-			break
-		}
-	}
+	w := BucketWidth(lo, hi)
 	counts := map[int64]int64{}
 	for _, t := range times {
 		if t != 0 {
 			counts[floorTo(t, w)]++
 		}
+	}
+	return fromMap(w, counts)
+}
+
+// BucketWidth is the finest bucket width (ns) that keeps the span lo..hi
+// within maxBuckets buckets.
+func BucketWidth(lo, hi int64) int64 {
+	for _, d := range bucketWidths {
+		if (hi-lo)/int64(d) < maxBuckets {
+			return int64(d)
+		}
+	}
+	return int64(bucketWidths[len(bucketWidths)-1])
+}
+
+// BucketsOf makes a table from counts by bucket start (multiples of w).
+func BucketsOf(w int64, counts map[int64]int64) *Buckets {
+	if len(counts) == 0 {
+		return nil
 	}
 	return fromMap(w, counts)
 }
