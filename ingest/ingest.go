@@ -392,7 +392,8 @@ func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
 // prepare adds the companions to a parsed record, redacts it, and shows it
 // to the Observer (which does not read the model, so a batch's records
 // may be shown before the model takes them). It says whether the record
-// is to be taken: false when the filter leaves it out.
+// goes on to the model: false when --where, --since or --until leave it
+// out (counted in Input.Filtered).
 func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) bool {
 	in.comp.Apply(rec)
 	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
