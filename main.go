@@ -4,25 +4,51 @@ package main
 
 import (
 	"context"
+	"fmt"
 	"os"
 	"os/signal"
 	"syscall"
+	"time"
 
 	"github.com/mattn/go-isatty"
 
 	"bitsift/cli"
 )
 
+// stopWithin is how long an interrupted run may take to stop on its own
+// before it is ended outright: a read blocked in the kernel (a FIFO with
+// no writer, a terminal) cannot see its context.
+const stopWithin = time.Second
+
 func main() {
 	// A closed pipe (bitsift report | head) then shows as EPIPE on write,
 	// which the commands treat as a quiet end, instead of killing the
 	// process.
 	signal.Ignore(syscall.SIGPIPE)
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	ctx, cancel := context.WithCancelCause(context.Background())
+	sigs := make(chan os.Signal, 2)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM)
+	go func() {
+		s := <-sigs
+		why := cli.Interrupted{Signal: s}
+		cancel(why)
+		// The commands stop and say so themselves; one that cannot (or a
+		// second signal) is ended here, with the same code and word.
+		var grace <-chan time.Time
+		if !cli.SelfStopping() {
+			grace = time.After(stopWithin)
+		}
+		select {
+		case <-sigs:
+		case <-grace:
+		}
+		fmt.Fprintf(os.Stderr, "bitsift: %s; stopped before the output was complete\n", why.Error())
+		os.Exit(why.Code())
+	}()
 	code := cli.Run(ctx, os.Args[1:], cli.IO{
 		In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		IsTerminal: isatty.IsTerminal(os.Stdout.Fd()),
 	})
-	stop()
+	signal.Stop(sigs)
 	os.Exit(code)
 }

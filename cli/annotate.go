@@ -44,6 +44,13 @@ func (c *annotateCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	if cfg.Redact || len(cfg.RedactFields) > 0 {
+		for _, p := range paths {
+			if p == "-" {
+				return &ExitError{Code: ExitUsage, Err: errors.New("annotate reads its input three times and would keep standard input in a file; under --redact it keeps no raw copy: give files")}
+			}
+		}
+	}
 	snap, readErr := ingest.Annotate(ctx, cfg, paths, std.Out)
 	if errors.Is(readErr, context.Canceled) {
 		return readErr

@@ -13,7 +13,7 @@ import (
 	"github.com/spf13/cobra"
 )
 
-// Exit codes, as documented in the README.
+// Exit codes, as documented in the README (more in exit.go).
 const (
 	ExitOK         = 0 // fine
 	ExitUsage      = 1 // bad flags or arguments
@@ -56,7 +56,7 @@ func Run(ctx context.Context, args []string, std IO) int {
 		return ee.Code
 	}
 	if errors.Is(err, context.Canceled) {
-		return ExitOK
+		return interrupted(ctx, std)
 	}
 	fmt.Fprintln(std.Err, "bitsift:", err)
 	return ExitUsage
@@ -67,6 +67,7 @@ var errQuiet = errors.New("already reported")
 
 // NewRoot returns the root command with every subcommand.
 func NewRoot(std IO) *cobra.Command {
+	out := &outputFlags{}
 	root := &cobra.Command{
 		Use:   "bitsift",
 		Short: "Measure how much information each field of a log stream carries",
@@ -81,16 +82,17 @@ terminal), or prints the demo's report (otherwise).`,
 		SilenceErrors: true,
 		Args:          cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return runDefault(cmd.Context(), std)
+			return runDefault(cmd.Context(), std, out)
 		},
 	}
+	out.register(root)
 	root.SetIn(std.In)
 	root.SetOut(std.Out)
 	root.SetErr(std.Err)
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return &ExitError{Code: ExitUsage, Err: fmt.Errorf("%w (see %s --help)", err, c.CommandPath())}
 	})
-	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std), newSQLCmd(std))
+	root.AddCommand(newReportCmd(std), newDemoCmd(std), newWatchCmd(std), newReplayCmd(std), newPlanCmd(std), newMergeCmd(std), newAnnotateCmd(std), newSQLCmd(std), newWorkerCmd(std))
 	return root
 }
 

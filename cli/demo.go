@@ -3,6 +3,7 @@ package cli
 import (
 	"bufio"
 	"context"
+	"math"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -48,6 +49,9 @@ calls fail and slow down.`,
 }
 
 func (c *demoCmd) run(ctx context.Context, std IO) error {
+	if !(c.rate >= 0) || math.IsInf(c.rate, 1) || c.lines < 0 { // NaN fails every comparison
+		return usage("demo: --rate must be a number of lines per second, 0 or more, and --lines 0 or more")
+	}
 	w := bufio.NewWriterSize(std.Out, 64<<10)
 	g := demo.New(c.seed, c.lines)
 	var tick *time.Ticker
@@ -92,18 +96,26 @@ func (c *demoCmd) run(ctx context.Context, std IO) error {
 
 // runDefault is `bitsift` with no command: the demo stream, on the screen
 // when stdout is a terminal, else as a report.
-func runDefault(ctx context.Context, std IO) error {
+func runDefault(ctx context.Context, std IO, o *outputFlags) error {
+	if err := o.check(); err != nil {
+		return err
+	}
+	base, err := o.baseline.load()
+	if err != nil {
+		return err
+	}
 	if std.IsTerminal {
 		// A window of 100,000 records (50 s at the demo's pace) keeps
 		// memory bounded on an endless stream and lets the incident
 		// stand out rather than fade into all that came before.
 		cfg := ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}}
-		return showScreen(ctx, std, cfg, demo.NewSource(1, 0, demo.ScreenRate))
+		return showScreen(ctx, std, cfg, demo.NewSource(1, 0, demo.ScreenRate), screenOptions{base: base, mouse: o.mouse})
 	}
 	in, err := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
 	if err != nil {
 		return err
 	}
+	in.SetBaseline(base)
 	g := demo.New(1, defaultDemoLines)
 	buf := make([]byte, 0, 512)
 	in.AddSource("demo")
@@ -112,5 +124,12 @@ func runDefault(ctx context.Context, std IO) error {
 		in.Line(buf, i, "demo")
 	}
 	in.Flush()
-	return writeError(report.Write(std.Out, report.Build(in.Snapshot(model.SnapshotOptions{})), "text"))
+	if err := checkBaseline(in, base); err != nil {
+		return err
+	}
+	opt := model.SnapshotOptions{}
+	if base != nil {
+		opt = model.SnapshotOptions{Deep: true, Profile: true}
+	}
+	return writeError(report.Write(std.Out, buildReport(in, in.Snapshot(opt)), o.output))
 }

@@ -63,6 +63,7 @@ func (f *followFlags) read(ctx context.Context, in *ingest.Ingester, paths []str
 		defer cancel()
 	}
 	in.AddSource(paths[0])
+	selfStopping.Store(true)
 	err = in.ReadSource(ctx, fl)
 	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
 		return nil

@@ -44,11 +44,12 @@ func TestHostileFileAccounted(t *testing.T) {
 	}
 }
 
-// TestEmptyAndUnterminated: an empty file is 0 lines; a last line without
+// TestEmptyAndUnterminated: an empty file is 0 lines (and no records, exit
+// 5); a last line without
 // a newline still counts.
 func TestEmptyAndUnterminated(t *testing.T) {
 	code, out, _ := run(t, "", "report", "-o", "json", write(t, "empty.log", nil))
-	if code != 0 || !strings.Contains(out, `"lines": 0`) {
+	if code != ExitNoRecords || !strings.Contains(out, `"lines": 0`) {
 		t.Errorf("empty file: exit %d\n%s", code, out)
 	}
 	code, out, _ = run(t, "", "report", "-o", "json", write(t, "tail.log", []byte("a=1 b=2\na=2 b=3")))

@@ -1,10 +1,12 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 	"strings"
 
@@ -20,7 +22,7 @@ import (
 // planOutputs and planEmits are the values of plan's -o and --emit.
 var (
 	planOutputs = []string{"text", "json", "html"}
-	planEmits   = []string{"jq", "otel"}
+	planEmits   = plan.Emits
 )
 
 type planCmd struct {
@@ -30,6 +32,7 @@ type planCmd struct {
 	output     string
 	emit       string
 	out        string
+	tables     string
 }
 
 func newPlanCmd(std IO) *cobra.Command {
@@ -65,6 +68,7 @@ regulations may require: check your retention obligations first.`,
 	fs.StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(planOutputs, ", "))
 	fs.StringVar(&c.emit, "emit", "", "print a program that applies the plan instead: "+strings.Join(planEmits, ", "))
 	fs.StringVar(&c.out, "out", "", "write the output to FILE (whole or not at all) instead of stdout")
+	fs.StringVar(&c.tables, "tables", "", "also write the constants and mapping tables to FILE as CSV, for a lookup at query time")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return planOutputs, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -85,14 +89,14 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if c.emit != "" && !oneOf(c.emit, planEmits) {
 		return usage("plan: unknown --emit %q (use one of %s)", c.emit, strings.Join(planEmits, ", "))
 	}
-	if c.maxLoss < 0 {
-		return usage("plan: --max-loss must be 0 or more bits per record")
+	if !(c.maxLoss >= 0) || math.IsInf(c.maxLoss, 1) { // NaN fails every comparison
+		return usage("plan: --max-loss must be a number of bits per record, 0 or more")
 	}
 	if isProf, err := profileInputs(paths); err != nil || isProf {
 		if err != nil {
 			return err
 		}
-		return c.runProfiles(std, paths)
+		return c.runProfiles(ctx, std, paths)
 	}
 	cfg, err := c.config()
 	if err != nil {
@@ -120,7 +124,10 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{})
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{})
+	if err != nil {
+		return err
+	}
 	if smp != nil {
 		smp.Keep(snap.Records)
 	}
@@ -129,11 +136,18 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	if snap.Records == 0 {
-		return inputErrorOr(readErr, snap, &ExitError{Code: ExitUnreadable, Err: errors.New("plan: no records to plan for (every line was rejected; see bitsift report)")})
+		return outcome(std, in, readErr, snap)
 	}
 	opts := plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: in.TimeKey() != ""}
 	if smp != nil {
 		opts.Batch = smp.Len()
+	}
+	if c.emit != "" && !plan.Fits(c.emit, snap.Input.Format) {
+		return usage("plan: --emit %s cannot process %s records; the exports that fit this input: %s",
+			c.emit, snap.Input.Format, strings.Join(plan.EmitsFor(snap.Input.Format), ", "))
+	}
+	if smp == nil && (c.emit == plan.EmitJQRestore || c.emit == plan.EmitJQRecords || c.emit == plan.EmitOTelRecords || c.tables != "") {
+		return usage("plan: --redact keeps no raw lines, so there are no tables or record classes to write (--emit jq-restore, jq-records, otel-records, --tables)")
 	}
 	var p *plan.Plan
 	if smp == nil {
@@ -142,13 +156,16 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	} else if p, err = plan.Make(snap, smp, opts); err != nil {
 		return &ExitError{Code: ExitUnreadable, Err: err}
 	}
-	return c.write(std, snap, p, readErr)
+	if err := ctx.Err(); err != nil {
+		return err // interrupted while measuring: nothing is written
+	}
+	return c.write(ctx, std, snap, p, readErr)
 }
 
 // runProfiles plans from profiles: chosen from the counts alone, as a
 // profile keeps no raw line to measure on or rebuild.
-func (c *planCmd) runProfiles(std IO, paths []string) error {
-	prof, err := mergedProfile(paths)
+func (c *planCmd) runProfiles(ctx context.Context, std IO, paths []string) error {
+	prof, err := mergedProfile(std, paths)
 	if err != nil {
 		return err
 	}
@@ -162,17 +179,23 @@ func (c *planCmd) runProfiles(std IO, paths []string) error {
 	}
 	p := plan.Choose(snap, plan.Options{MaxLoss: c.maxLoss, Pins: pins, RecordTimes: prof.TimeField != ""})
 	p.Notes = append(p.Notes, "not measured and not verified: "+errNoLines.Error()+"; the saving is the model's estimate")
-	return c.write(std, snap, p, nil)
+	return c.write(ctx, std, snap, p, nil)
 }
 
 // write writes the plan as the flags ask.
-func (c *planCmd) write(std IO, snap *model.Snapshot, p *plan.Plan, readErr error) error {
+func (c *planCmd) write(ctx context.Context, std IO, snap *model.Snapshot, p *plan.Plan, readErr error) error {
 	write := func(w io.Writer) error {
 		switch {
 		case c.emit == "jq":
 			return plan.WriteJQ(w, p)
-		case c.emit == "otel":
+		case c.emit == plan.EmitJQRestore:
+			return plan.WriteJQRestore(w, p)
+		case c.emit == plan.EmitOTel:
 			return plan.WriteOTel(w, p)
+		case c.emit == plan.EmitJQRecords:
+			return plan.WriteJQRecords(w, p)
+		case c.emit == plan.EmitOTelRecords:
+			return plan.WriteOTelRecords(w, p)
 		case c.output == "json":
 			return plan.WriteJSON(w, p)
 		case c.output == "html":
@@ -180,12 +203,23 @@ func (c *planCmd) write(std IO, snap *model.Snapshot, p *plan.Plan, readErr erro
 		}
 		return plan.WriteText(w, p)
 	}
+	if c.tables != "" {
+		if err := plan.WriteFile(c.tables, func(w io.Writer) error { return plan.WriteTablesCSV(w, p) }); err != nil {
+			return &ExitError{Code: ExitWrite, Err: err}
+		}
+	}
 	if c.out != "" {
 		if err := plan.WriteFile(c.out, write); err != nil {
-			return &ExitError{Code: ExitUnreadable, Err: err}
+			return &ExitError{Code: ExitWrite, Err: err}
 		}
-	} else if err := write(std.Out); err != nil {
+		return inputError(readErr, snap)
+	}
+	var out bytes.Buffer
+	if err := write(&out); err != nil {
 		return writeError(err)
+	}
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
 	}
 	return inputError(readErr, snap)
 }
@@ -230,12 +264,4 @@ func oneOf(v string, set []string) bool {
 		}
 	}
 	return false
-}
-
-// inputErrorOr is inputError, or alt when the input read cleanly.
-func inputErrorOr(readErr error, snap *model.Snapshot, alt error) error {
-	if err := inputError(readErr, snap); err != nil {
-		return err
-	}
-	return alt
 }

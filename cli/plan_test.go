@@ -41,8 +41,20 @@ type planJSON struct {
 		Huffman *float64 `json:"huffman_bits"`
 		Action  string   `json:"action"`
 	} `json:"fields"`
-	Measured int    `json:"measured_records"`
-	Caution  string `json:"caution"`
+	Measured   int    `json:"measured_records"`
+	Caution    string `json:"caution"`
+	Reductions []struct {
+		Class        string   `json:"class"`
+		Action       string   `json:"action"`
+		KeepOneIn    *float64 `json:"keep_one_in"`
+		ShareRecords *float64 `json:"share_records"`
+		ShareBytes   *float64 `json:"share_bytes"`
+		SavedPerDay  struct {
+			Raw, Compressed *float64
+		} `json:"bytes_saved_per_day"`
+		BitsLost *float64 `json:"bits_lost_per_record"`
+		Findings *int     `json:"findings_in_class"`
+	} `json:"record_reductions"`
 }
 
 func runPlan(t *testing.T, args ...string) planJSON {
@@ -232,7 +244,7 @@ func TestPlanFlags(t *testing.T) {
 		{"negative loss", []string{"--max-loss", "-1"}, ExitUsage, "--max-loss"},
 		{"bad emit", []string{"--emit", "sed"}, ExitUsage, "--emit"},
 		{"text caution", nil, ExitOK, "Check your retention obligations"},
-		{"pins", []string{"--keep", "zone", "--drop", "host"}, ExitOK, "derive* zone"},
+		{"pins", []string{"--keep", "zone", "--drop", "host"}, ExitOK, "drop*"},
 		{"otel", []string{"--emit", "otel"}, ExitOK, `delete_key(attributes, "svc")`},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -259,5 +271,52 @@ func TestPlanOut(t *testing.T) {
 	}
 	if es, _ := os.ReadDir(dir); len(es) != 1 {
 		t.Errorf("files left behind: %v", es)
+	}
+}
+
+// TestPlanEmitFits: an export is offered only for input it can process:
+// jq reads JSON, so asked of an access log (lines of an invented quay
+// gate, in the combined log format) it exits with the usage code naming
+// the exports that fit.
+func TestPlanEmitFits(t *testing.T) {
+	var b bytes.Buffer
+	for i := 0; i < 200; i++ {
+		b.WriteString(`10.4.0.` + string(rune('1'+i%9)) + ` - - [14/Mar/2026:06:00:0` + string(rune('0'+i%10)) +
+			` +0000] "GET /v1/berths/` + string(rune('a'+i%5)) + ` HTTP/1.1" 200 512 "-" "gate-probe/1.0"` + "\n")
+	}
+	path := write(t, "gate.log", b.Bytes())
+	for _, emit := range []string{"jq", "jq-restore", "jq-records"} {
+		code, out, errs := run(t, "", "plan", "--emit", emit, path)
+		if code != ExitUsage || out != "" || !strings.Contains(errs, "otel") || !strings.Contains(errs, emit) {
+			t.Errorf("--emit %s: exit %d, stdout %q, stderr %q", emit, code, out, errs)
+		}
+	}
+	if code, out, errs := run(t, "", "plan", "--emit", "otel", path); code != ExitOK || !strings.Contains(out, "delete_key") && !strings.Contains(out, "[]") {
+		t.Errorf("--emit otel: exit %d: %s%s", code, out, errs)
+	}
+}
+
+// TestPlanRecordReductions: plan -o json on the demo lists the health
+// checks (package demo: route /healthz) among its record reductions, with
+// measured bytes saved per day (the demo's records carry timestamps) and
+// no findings in that class.
+func TestPlanRecordReductions(t *testing.T) {
+	path := write(t, "demo.jsonl", demoLines(20_000))
+	p := runPlan(t, path)
+	found := false
+	for _, r := range p.Reductions {
+		if r.KeepOneIn == nil || r.ShareRecords == nil || r.ShareBytes == nil || r.BitsLost == nil || r.Findings == nil ||
+			r.SavedPerDay.Raw == nil || r.SavedPerDay.Compressed == nil {
+			t.Fatalf("reduction lacks keys: %+v", r)
+		}
+		if r.Class == `route="/healthz"` && r.Action == "sample" {
+			found = true
+			if *r.SavedPerDay.Compressed <= 0 || *r.SavedPerDay.Raw <= *r.SavedPerDay.Compressed || *r.Findings != 0 {
+				t.Errorf("health checks: %+v", r)
+			}
+		}
+	}
+	if !found {
+		t.Errorf("no health-check class among %+v", p.Reductions)
 	}
 }

@@ -14,6 +14,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"bitsift/ingest"
+	"bitsift/kafka"
 	"bitsift/model"
 	"bitsift/profile"
 	"bitsift/report"
@@ -144,15 +145,22 @@ func loadProfiles(args []string) ([]*profile.Profile, error) {
 }
 
 // mergedProfile reads and adds the profiles args name.
-func mergedProfile(args []string) (*profile.Profile, error) {
+// A topic's profiles are chained by offset first (merge_topic.go): repeats
+// are left out, said on std.Err, and gaps become faults (missingError).
+func mergedProfile(std IO, args []string) (*profile.Profile, error) {
 	ps, err := loadProfiles(args)
 	if err != nil {
 		return nil, err
 	}
-	if len(ps) == 1 {
-		return ps[0], nil
+	return mergeProfiles(std, ps)
+}
+
+// mergeProfiles adds ps, chaining a topic's profiles by offset first.
+func mergeProfiles(std IO, ps []*profile.Profile) (*profile.Profile, error) {
+	m, notes, err := kafka.Merge(ps)
+	for _, n := range notes {
+		fmt.Fprintln(std.Err, "bitsift: merge:", n)
 	}
-	m, err := profile.Merge(ps)
 	if err != nil {
 		return nil, &ExitError{Code: ExitUsage, Err: err}
 	}
@@ -237,13 +245,14 @@ func (c *mergeCmd) run(std IO, args []string) error {
 			return &ExitError{Code: ExitUnreadable, Err: errors.New("merge: no profile lies within --since/--until")}
 		}
 	}
-	p := ps[0]
-	if len(ps) > 1 {
-		if p, err = profile.Merge(ps); err != nil {
-			return &ExitError{Code: ExitUsage, Err: err}
-		}
+	p, err := mergeProfiles(std, ps)
+	if err != nil {
+		return err
 	}
-	return reportProfile(std, p, c.output, c.out)
+	if err := reportProfile(std, p, c.output, c.out); err != nil {
+		return err
+	}
+	return missingError(p)
 }
 
 // within keeps the profiles whose records all lie in [since, until): a

@@ -1,9 +1,11 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
+	"os"
 
 	tea "github.com/charmbracelet/bubbletea"
 	"github.com/charmbracelet/lipgloss"
@@ -13,6 +15,7 @@ import (
 	"bitsift/parse"
 	"bitsift/plan"
 	"bitsift/profile"
+	"bitsift/report"
 	"bitsift/ui"
 )
 
@@ -45,6 +48,34 @@ func (f *profileFeed) Sample(context.Context) (*plan.Sample, error) {
 	return nil, errNoLines
 }
 
+// Lines has nothing to show: a profile keeps counts, never the lines
+// behind them.
+func (f *profileFeed) Lines(context.Context, []model.Cond, int) ([]ingest.LineBehind, int, error) {
+	return nil, 0, errNoLines
+}
+
+// SaveBaseline writes the profile's figures as a JSON report that
+// --baseline reads, refusing to replace a file.
+func (f *profileFeed) SaveBaseline(ctx context.Context, path string) error {
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	var b bytes.Buffer
+	if err := report.WriteJSON(&b, report.Build(f.p.Snapshot(model.SnapshotOptions{Profile: true}))); err != nil {
+		return err
+	}
+	out, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+	if err != nil {
+		return err
+	}
+	if _, err := out.Write(b.Bytes()); err != nil {
+		out.Close()
+		os.Remove(path)
+		return err
+	}
+	return out.Close()
+}
+
 // errNoLines says why a plan from a profile is not measured.
 var errNoLines = errors.New("a profile holds counts, not raw lines: the plan is not measured")
 
@@ -53,7 +84,7 @@ func showProfileScreen(ctx context.Context, std IO, p *profile.Profile, name str
 	r := lipgloss.NewRenderer(std.Out)
 	r.HasDarkBackground()
 	m := ui.New(newProfileFeed(p, name), ui.Options{Renderer: r, Context: ctx, Windows: []ui.Window{{Kind: model.WindowAll}}})
-	opts := []tea.ProgramOption{tea.WithContext(ctx), tea.WithOutput(std.Out), tea.WithAltScreen(), tea.WithMouseCellMotion()}
+	opts := []tea.ProgramOption{tea.WithContext(ctx), tea.WithOutput(std.Out), tea.WithAltScreen()}
 	if stdinIsPipe() {
 		opts = append(opts, tea.WithInputTTY())
 	} else {

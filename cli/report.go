@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -24,6 +25,7 @@ type streamFlags struct {
 	redactFields []string
 	analyseTime  bool
 	redactKey    string
+	narrow       narrowFlags
 	templates    []string
 }
 
@@ -36,6 +38,7 @@ func (f *streamFlags) register(cmd *cobra.Command, defaultWindow string) {
 	fs.BoolVar(&f.redact, "redact", false, "replace every value by a keyed hash at ingest (figures unchanged; raw values never kept or shown)")
 	fs.StringSliceVar(&f.redactFields, "redact-fields", nil, "replace the values of these fields only by keyed hashes (comma-separated)")
 	fs.StringVar(&f.redactKey, "redact-key", "", "redact with the key in FILE (at least 16 bytes) instead of a random one, so that profiles of several runs add up (implies --redact unless --redact-fields)")
+	f.narrow.register(cmd)
 	fs.BoolVar(&f.analyseTime, "analyse-time", false, "analyse the timestamp field like any other (by default it is marked and left out of pairs)")
 	fs.StringSliceVar(&f.templates, "template", nil, "give these fields a FIELD~template companion whatever the sample says (comma-separated)")
 	cmd.RegisterFlagCompletionFunc("format", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
@@ -48,8 +51,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 	if err != nil {
 		return ingest.Config{}, &ExitError{Code: ExitUsage, Err: err}
 	}
+	filter, err := f.narrow.filter()
+	if err != nil {
+		return ingest.Config{}, err
+	}
 	cfg := ingest.Config{Format: f.format, Pattern: f.pattern, MaxLine: f.maxLine, Model: model.Options{Window: w},
-		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates}
+		Redact: f.redact, RedactFields: f.redactFields, AnalyseTime: f.analyseTime, Templates: f.templates, Filter: filter}
 	if cfg.RedactKey, err = readRedactKey(f.redactKey); err != nil {
 		return ingest.Config{}, err
 	}
@@ -72,10 +79,12 @@ func (f *streamFlags) config() (ingest.Config, error) {
 
 type reportCmd struct {
 	streamFlags
+	topic    topicFlags
 	live     followFlags
 	output   string
-	baseline string
+	baseline baselineFlag
 	prof     profileFlags
+	by       string
 }
 
 func newReportCmd(std IO) *cobra.Command {
@@ -95,8 +104,10 @@ come for --idle, or it is interrupted; then it prints the report.`,
   kubectl logs deploy/api | bitsift report -
   bitsift report --follow --idle 4s -o json /var/log/app.log
   bitsift report -o json monday.log > base.json
-  bitsift report --baseline base.json tuesday.log`,
-		Args: cobra.MinimumNArgs(1),
+  bitsift report --baseline base.json tuesday.log
+  bitsift report --brokers kafka-1:9092 --topic app-logs --start 1h -o json
+  bitsift report --brokers kafka-1:9092 --topic app-logs --follow --for 10m`,
+		Args: c.topic.args("report", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if isProf, err := profileInputs(args); err != nil || isProf {
 				if err != nil {
@@ -109,9 +120,11 @@ come for --idle, or it is interrupted; then it prints the report.`,
 	}
 	c.register(cmd, "all")
 	c.live.register(cmd)
+	c.topic.register(cmd, "oldest")
 	c.prof.register(cmd)
 	cmd.Flags().StringVarP(&c.output, "output", "o", "text", "output format: "+strings.Join(report.Formats, ", "))
-	cmd.Flags().StringVar(&c.baseline, "baseline", "", "a JSON report (report -o json) of a healthy period to compare with")
+	c.baseline.register(cmd)
+	cmd.Flags().StringVar(&c.by, "by", "", "also report on each of the most frequent values of this field on its own (a section per value; reads the files once more per value)")
 	cmd.RegisterFlagCompletionFunc("output", func(*cobra.Command, []string, string) ([]string, cobra.ShellCompDirective) {
 		return report.Formats, cobra.ShellCompDirectiveNoFileComp
 	})
@@ -134,15 +147,15 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return &ExitError{Code: ExitUsage, Err: err}
 	}
-	if c.baseline != "" {
-		p, err := report.ReadBaseline(c.baseline)
-		if err != nil {
-			return &ExitError{Code: ExitUsage, Err: err}
-		}
-		in.Model().SetBaseline(p)
+	base, err := c.baseline.load()
+	if err != nil {
+		return err
 	}
+	in.Model().SetBaseline(base)
 	var readErr error
-	if c.live.follow {
+	if c.topic.on() {
+		readErr = c.readTopic(ctx, in, cfg.MaxLine)
+	} else if c.live.follow {
 		readErr = c.live.read(ctx, in, paths, cfg.MaxLine)
 	} else {
 		if err := c.live.check(); err != nil {
@@ -154,19 +167,50 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) || errors.As(readErr, &usage) {
 		return readErr
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
+	if err := checkBaseline(in, base); err != nil {
+		return err
+	}
+	if c.live.follow {
+		// An interrupt is how a follow ends: the report of what was read
+		// follows it.
+		ctx = context.WithoutCancel(ctx)
+	}
 	if c.prof.out != "" {
 		if err := writeLogProfile(in, cfg, paths, c.prof); err != nil {
 			return err
 		}
 	}
-	if err := report.Write(std.Out, report.Build(snap), c.output); err != nil {
-		return writeError(err)
+	var more func(*report.Report, *model.Snapshot) error
+	if c.by != "" {
+		more = func(rep *report.Report, snap *model.Snapshot) error {
+			return c.groups(ctx, rep, snap, cfg, base, paths)
+		}
 	}
-	if err := readNotes(std, in); err != nil {
+	return writeReport(ctx, std, in, c.output, readErr, more)
+}
+
+// writeReport takes the final snapshot and writes the report whole, unless
+// ctx ends first; then the exit code says what the input was worth. more,
+// when not nil, adds to the report before it is written (--by's groups).
+func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error, more func(*report.Report, *model.Snapshot) error) error {
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
+	if err != nil {
 		return err
 	}
-	return inputError(readErr, snap)
+	rep := buildReport(in, snap)
+	if more != nil {
+		if err := more(rep, snap); err != nil {
+			return err
+		}
+	}
+	var out bytes.Buffer
+	if err := report.Write(&out, rep, format); err != nil {
+		return writeError(err)
+	}
+	if err := writeOut(ctx, std.Out, out.Bytes()); err != nil {
+		return err
+	}
+	return outcome(std, in, readErr, snap)
 }
 
 // runProfiles reports on profiles instead of logs: their counts added.
@@ -177,11 +221,14 @@ func (c *reportCmd) runProfiles(cmd *cobra.Command, std IO, args []string) error
 	if err := unusedWithProfiles(cmd, "follow", "format", "pattern", "window", "redact", "redact-fields", "redact-key", "baseline", "analyse-time"); err != nil {
 		return err
 	}
-	p, err := mergedProfile(args)
+	p, err := mergedProfile(std, args)
 	if err != nil {
 		return err
 	}
-	return reportProfile(std, p, c.output, c.prof.out)
+	if err := reportProfile(std, p, c.output, c.prof.out); err != nil {
+		return err
+	}
+	return missingError(p)
 }
 
 func validOutput(o string) bool {
@@ -203,12 +250,4 @@ func inputError(err error, snap *model.Snapshot) error {
 		code = ExitUnreadable
 	}
 	return &ExitError{Code: code, Err: err}
-}
-
-// writeError treats a closed pipe (bitsift report | head) as a quiet end.
-func writeError(err error) error {
-	if isBrokenPipe(err) {
-		return &ExitError{Code: ExitOK, Err: errQuiet}
-	}
-	return err
 }

@@ -2,16 +2,12 @@ package cli
 
 import (
 	"context"
-	"errors"
 	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
-	"bitsift/ingest"
-	"bitsift/model"
 	"bitsift/parse"
-	"bitsift/report"
 )
 
 // watchCmd is `bitsift watch`: a live file (or stdin) followed across
@@ -19,12 +15,14 @@ import (
 // not a terminal.
 type watchCmd struct {
 	streamFlags
+	topic       topicFlags
 	fromStart   bool
 	lines       int
 	rotateGrace time.Duration
 	poll        bool
 	forDur      time.Duration
 	idle        time.Duration
+	out         outputFlags
 }
 
 func newWatchCmd(std IO) *cobra.Command {
@@ -43,12 +41,18 @@ for --idle, then prints the text report.`,
 		Example: `  bitsift watch /var/log/app.log
   bitsift watch --from-start --rotate-grace 5s /var/log/app.log
   bitsift demo --rate 2000 --lines 0 | bitsift watch -
-  bitsift watch --from-start --idle 10s app.log > report.txt`,
-		Args: cobra.ExactArgs(1),
+  bitsift watch --from-start --idle 10s app.log > report.txt
+  bitsift watch --brokers kafka-1:9092 --topic app-logs
+  bitsift watch --brokers kafka-1:9093 --tls --sasl scram-sha-512 --sasl-file kafka.cred --topic app-logs --start 15m`,
+		Args: c.topic.args("watch", 1, 1),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if c.topic.on() {
+				return c.runTopic(cmd.Context(), std)
+			}
 			return c.run(cmd.Context(), std, args[0])
 		},
 	}
+	c.topic.register(cmd, "newest")
 	// A live stream has no end: a bounded window keeps memory bounded.
 	c.register(cmd, watchWindow)
 	fs := cmd.Flags()
@@ -58,6 +62,7 @@ for --idle, then prints the text report.`,
 	fs.BoolVar(&c.poll, "poll", false, "look for changes every 250ms instead of waiting for notifications (network filesystems)")
 	fs.DurationVar(&c.forDur, "for", 0, "stop reading after this long (e.g. 30s, 5m); the figures stay on the screen")
 	fs.DurationVar(&c.idle, "idle", 0, "stop reading once no line has come for this long (e.g. 10s)")
+	c.out.register(cmd)
 	return cmd
 }
 
@@ -76,6 +81,9 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if err != nil {
 		return err
 	}
+	if err := c.out.check(); err != nil {
+		return err
+	}
 	cfg.Stdin = std.In
 	fl, err := parse.NewFollower(path, parse.FollowOptions{
 		FromStart: c.fromStart, Lines: c.lines, RotateGrace: c.rotateGrace, Poll: c.poll,
@@ -88,18 +96,41 @@ func (c *watchCmd) run(ctx context.Context, std IO, path string) error {
 	if c.forDur > 0 {
 		src = newUntilSource(fl, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, src)
+	return c.out.show(ctx, std, cfg, src)
+}
+
+// runTopic is watch on a Kafka topic: from --start (newest by default)
+// on, until interrupted, --for or --idle.
+func (c *watchCmd) runTopic(ctx context.Context, std IO) error {
+	switch {
+	case c.fromStart || c.lines != 0 || c.poll:
+		return usage("watch: --from-start, --lines and --poll are for files; give --start with --topic")
+	case c.forDur < 0 || c.idle < 0:
+		return usage("watch: --for and --idle must not be negative")
 	}
-	return showScreen(ctx, std, cfg, src)
+	cfg, err := c.config()
+	if err != nil {
+		return err
+	}
+	ks, err := c.topic.open(ctx, false, c.idle, cfg.MaxLine)
+	if err != nil {
+		return err
+	}
+	var src parse.Source = ks
+	if c.forDur > 0 {
+		src = newUntilSource(ks, time.Now().Add(c.forDur), "stopped after --for "+c.forDur.String())
+	}
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // replayCmd is `bitsift replay`: archives paced on the screen, or read to
 // their end into a text report when standard output is not a terminal.
 type replayCmd struct {
 	streamFlags
+	topic     topicFlags
 	speed     string
 	keepOrder bool
+	out       outputFlags
 }
 
 func newReplayCmd(std IO) *cobra.Command {
@@ -116,16 +147,22 @@ screen, space pauses the replay and n lets one window of records through.
 When standard output is not a terminal, replay reads the files to their end
 at the given speed and prints the text report.`,
 		Example: `  bitsift replay app.log.2.gz app.log.1.gz app.log
-  bitsift replay --speed 20 --window 5m yesterday.log.zst`,
-		Args: cobra.MinimumNArgs(1),
+  bitsift replay --speed 20 --window 5m yesterday.log.zst
+  bitsift replay --brokers kafka-1:9092 --topic app-logs --start 2026-12-01T22:00:00Z`,
+		Args: c.topic.args("replay", 1, 0),
 		RunE: func(cmd *cobra.Command, args []string) error {
+			if c.topic.on() {
+				return c.runTopic(cmd.Context(), std)
+			}
 			return c.run(cmd.Context(), std, args)
 		},
 	}
+	c.topic.register(cmd, "oldest")
 	c.register(cmd, "all")
 	fs := cmd.Flags()
 	fs.StringVar(&c.speed, "speed", "max", `"max", or N times the records' original pace (e.g. 1, 10, 0.5)`)
 	fs.BoolVar(&c.keepOrder, "keep-order", false, "read the files in the order given, not by their first timestamps")
+	c.out.register(cmd)
 	return cmd
 }
 
@@ -134,7 +171,7 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 		if err != nil {
 			return err
 		}
-		p, err := mergedProfile(paths)
+		p, err := mergedProfile(std, paths)
 		if err != nil {
 			return err
 		}
@@ -151,6 +188,9 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return err
 	}
+	if err := c.out.check(); err != nil {
+		return err
+	}
 	format := cfg.Format
 	if format == "pattern" {
 		format = "" // the replayer reads times with a named format only
@@ -159,30 +199,42 @@ func (c *replayCmd) run(ctx context.Context, std IO, paths []string) error {
 	if err != nil {
 		return usage("replay: %v", err)
 	}
-	if !std.IsTerminal {
-		return printReport(ctx, std, cfg, r)
-	}
-	return showScreen(ctx, std, cfg, r)
+	return c.out.show(ctx, std, cfg, r)
 }
 
-// printReport reads src to its end (or until ctx is done: an interrupted
-// follow still reports what it read) and prints the text report.
-func printReport(ctx context.Context, std IO, cfg ingest.Config, src parse.Source) error {
-	defer src.Close()
-	in, err := ingest.New(cfg)
+// runTopic is replay on a Kafka topic: the records it holds from --start
+// (oldest by default) to the end offsets it had when replay began, as fast
+// as they can be read or paced by the records' timestamps (--speed N;
+// partitions come interleaved as they are fetched, so the pace follows
+// the records' times only roughly).
+func (c *replayCmd) runTopic(ctx context.Context, std IO) error {
+	speed, err := parse.ParseSpeed(c.speed)
+	switch {
+	case err != nil:
+		return usage("replay: --%v", err)
+	case c.keepOrder:
+		return usage("replay: --keep-order is for files")
+	}
+	cfg, err := c.config()
 	if err != nil {
-		return &ExitError{Code: ExitUsage, Err: err}
+		return err
 	}
-	in.AddSource(src.Status().Name)
-	readErr := in.ReadSource(ctx, src)
-	if errors.Is(readErr, context.Canceled) || errors.Is(readErr, context.DeadlineExceeded) {
-		readErr = nil
+	ks, err := c.topic.open(ctx, true, 0, cfg.MaxLine)
+	if err != nil {
+		return err
 	}
-	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
-	if err := report.Write(std.Out, report.Build(snap), "text"); err != nil {
-		return writeError(err)
+	var src parse.Source = ks
+	if speed > 0 {
+		format := cfg.Format
+		if format == "pattern" {
+			format = ""
+		}
+		if src, err = parse.NewSourceReplayer(ks, parse.ReplayOptions{Speed: speed, Format: format, MaxLine: cfg.MaxLine}); err != nil {
+			ks.Close()
+			return usage("replay: %v", err)
+		}
 	}
-	return inputError(readErr, snap)
+	return c.out.show(ctx, std, cfg, src)
 }
 
 // watchWindow is watch's default window: the last 100,000 records, as on

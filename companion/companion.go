@@ -41,7 +41,7 @@ const (
 	// "17/May/2015:10:05:03 +0000" is no message, and fields named like
 	// timestamps never get templates), and this many distinct values, at
 	// least one per textRecordsPerDistinct records. Fields named like
-	// messages (msg, message, ...) need only the distinct values.
+	// messages (msg, message, ...) always get one.
 	minTextPresent         = 8
 	minTextDistinct        = 4
 	textRecordsPerDistinct = 64
@@ -205,11 +205,14 @@ func (s *Set) Merge(o *Set) []Companion {
 
 // freeText says whether a field reads as free text.
 func freeText(fs *fieldSample) bool {
-	if parse.IsTimeKey(fs.name) || fs.numeric || fs.present < minTextPresent || len(fs.distinct) < minTextDistinct {
+	if parse.IsTimeKey(fs.name) || fs.numeric {
 		return false
 	}
 	if isMessageKey(fs.name) {
-		return true
+		return true // a message, however few and alike the sample's
+	}
+	if fs.present < minTextPresent || len(fs.distinct) < minTextDistinct {
+		return false
 	}
 	return 2*fs.spaces >= fs.present && textRecordsPerDistinct*len(fs.distinct) >= fs.present
 }

@@ -1,6 +1,7 @@
 package companion
 
 import (
+	"fmt"
 	"math"
 	"strconv"
 	"testing"
@@ -122,4 +123,42 @@ func BenchmarkTemplate(b *testing.B) {
 	for i := 0; b.Loop(); i++ {
 		tp.template(msgs[i%len(msgs)])
 	}
+}
+
+// Host:port-like words do not branch the tree once masked: one event with
+// many relays is one group, not one per relay (the 340 templates
+// for 8 events). Short messages that differ in their one telling word stay
+// apart; a longer one with one varying plain word merges.
+func TestTemplateVariableWordsAndLength(t *testing.T) {
+	tp := NewTemplates("msg")
+	for i := 0; i < 300; i++ {
+		tp.Value([]byte(fmt.Sprintf("relay%d.quay.example:%d open through proxy 10.0.%d.1:8080 HTTPS", i%40, 400+i%7, i%9)))
+		tp.Value([]byte(fmt.Sprintf("db%02d.berths.internal:5432 open through proxy 10.0.%d.1:8080 HTTPS", i%30, i%9)))
+	}
+	if tp.Groups() != 1 {
+		t.Errorf("%d groups for one event: %v", tp.Groups(), groupTexts(tp))
+	}
+	short := NewTemplates("msg")
+	for _, m := range []string{"gate opened", "gate closed", "crane 4 stopped", "crane 7 started"} {
+		short.Value([]byte(m))
+	}
+	if short.Groups() != 4 {
+		t.Errorf("short messages merged: %v", groupTexts(short))
+	}
+	long := NewTemplates("msg")
+	for _, u := range []string{"ops", "pilot", "warden"} {
+		long.Value([]byte("session opened for user " + u + " by (uid=0)"))
+	}
+	if long.Groups() != 1 {
+		t.Errorf("one varying word split a long message: %v", groupTexts(long))
+	}
+}
+
+func groupTexts(t *Templates) []string {
+	var out []string
+	for id := 1; id <= t.Groups(); id++ {
+		s, _ := t.Text(id)
+		out = append(out, s)
+	}
+	return out
 }

@@ -154,7 +154,10 @@ func (t *Templates) group(msg []byte) *tgroup {
 			switch {
 			case w == wildcard:
 				wild++
-			case w != string(t.words[i]):
+			case w != string(t.words[i]) && !(variableWord([]byte(w)) && variableWord(t.words[i])):
+				// Two words that both hold variable parts (relay<num>.quay.example,
+				// db<num>.berths.internal) are values of one slot, not a
+				// difference.
 				diff++
 			}
 		}
@@ -163,7 +166,7 @@ func (t *Templates) group(msg []byte) *tgroup {
 		}
 	}
 	if best != nil && bestDiff <= allowedDiff(n) {
-		if bestDiff > 0 {
+		if !best.same(t.words) {
 			for i, w := range best.words {
 				if w != wildcard && w != string(t.words[i]) {
 					best.words[i] = wildcard
@@ -184,6 +187,16 @@ func (t *Templates) group(msg []byte) *tgroup {
 	node.groups = append(node.groups, g)
 	t.groups = append(t.groups, g)
 	return g
+}
+
+// same says whether the group's words are words exactly.
+func (g *tgroup) same(words [][]byte) bool {
+	for i, w := range g.words {
+		if w != wildcard && w != string(words[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // variableWord: a word with a digit or a mask in it.

@@ -260,6 +260,23 @@ func (a *annotator) drain(end bool) {
 			a.err = a.enc.Encode(an)
 		}
 	}
+	if end && len(a.results) > 0 {
+		// A record closed at the end of its source from parts already
+		// written (a CRI partial line with no final part): after them.
+		left := make([]*Annotation, 0, len(a.results))
+		for _, an := range a.results {
+			left = append(left, an)
+		}
+		sort.Slice(left, func(i, j int) bool {
+			return left[i].File < left[j].File || left[i].File == left[j].File && left[i].Line < left[j].Line
+		})
+		for _, an := range left {
+			if a.err == nil {
+				a.err = a.enc.Encode(an)
+			}
+		}
+		clear(a.results)
+	}
 	if a.head > 4096 && a.head*2 > len(a.queue) {
 		a.queue = append(a.queue[:0], a.queue[a.head:]...)
 		a.head = 0

@@ -109,14 +109,19 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
 	b.parsed = true
 }
 
-// takeBatch takes b's lines in order: faults are recorded, lines of a
-// parsed batch go straight to the model, the others through take. between
-// (when not nil) is called every chunkLines lines, so that the live owner
-// can answer requests. It returns the first fault.
-func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
+// takeBatch takes b's lines in order: faults are recorded, the records of
+// a parsed batch go to the model together (model.Model.AddBatch), the
+// lines of an unparsed one through take. between (when not nil) is called
+// every chunkLines lines, so that the live owner can answer requests; when
+// it returns false the rest is left (the live runner is stopping). It
+// returns the first fault.
+func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 	for i := range b.lines {
 		if between != nil && i%chunkLines == chunkLines-1 {
-			between()
+			in.flushRecords()
+			if !between() {
+				return first // stopping: the rest is not wanted
+			}
 		}
 		l := &b.lines[i]
 		if l.err != nil {
@@ -141,10 +146,33 @@ func (in *Ingester) takeBatch(b *batch, between func()) (first error) {
 		t := l.t
 		if !l.hasTime {
 			t = in.cfg.Clock().UnixNano()
-		} else {
+		} else if !in.timeMarked {
+			in.flushRecords() // the records before it were taken before the mark
 			in.markTime()
 		}
-		in.commit(&b.recs[i], l.num, t, l.source)
+		rec := &b.recs[i]
+		in.prepare(rec, l.num, t, l.source)
+		in.held.recs = append(in.held.recs, rec)
+		in.held.lines = append(in.held.lines, l.num)
+		in.held.times = append(in.held.times, t)
 	}
+	in.flushRecords()
 	return first
+}
+
+// heldRecords are a parsed batch's records on their way to the model.
+type heldRecords struct {
+	recs         []*parse.Record
+	lines, times []int64
+}
+
+// flushRecords takes the held records into the model.
+func (in *Ingester) flushRecords() {
+	h := &in.held
+	if len(h.recs) == 0 {
+		return
+	}
+	in.model.AddBatch(h.recs, h.lines, h.times)
+	clear(h.recs)
+	h.recs, h.lines, h.times = h.recs[:0], h.lines[:0], h.times[:0]
 }

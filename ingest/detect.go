@@ -140,6 +140,14 @@ func (in *Ingester) rejected(line []byte) {
 // accepted notes a line the format read.
 func (in *Ingester) accepted() { in.det.run = in.det.run[:0] }
 
+// learnForced lets a format given with --format that learns the lines'
+// shape (parse.Learner) learn it from the sample.
+func (in *Ingester) learnForced(texts [][]byte) {
+	if l, ok := in.format.(parse.Learner); ok && in.cfg.Format != "" {
+		l.Learn(in.detectionSample(texts))
+	}
+}
+
 // checkForced warns when a format given with --format fits the sample
 // badly, naming the format detection would take.
 func (in *Ingester) checkForced(sample [][]byte) {

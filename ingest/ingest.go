@@ -64,6 +64,10 @@ type Config struct {
 	Templates []string
 	// Observer, when set, sees what becomes of every line (annotate.go).
 	Observer Observer
+	// Filter, when active, leaves out the records it does not keep
+	// (counted in Input.Filtered), after the companions are added and
+	// before redaction (see filter.go).
+	Filter *Filter
 }
 
 // Ingester turns lines into model records.
@@ -96,6 +100,7 @@ type Ingester struct {
 	lastNum  int64
 
 	input model.Input
+	held  heldRecords // a parsed batch's records, for the model (batch.go)
 }
 
 type pendingLine struct {
@@ -241,6 +246,7 @@ func (in *Ingester) start() {
 	for i, p := range in.pending {
 		texts[i] = p.text
 	}
+	in.learnForced(texts)
 	in.checkForced(texts)
 	if in.format == nil {
 		d, err := parse.Detect(in.detectionSample(texts))
@@ -358,16 +364,29 @@ func (in *Ingester) add(num int64, source string) {
 	in.commit(&in.rec, num, in.recTime(), source)
 }
 
-// commit adds the companions to a parsed record, redacts it, and takes it
-// into the model.
+// commit prepares a parsed record and takes it into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
+	in.prepare(rec, num, t, source)
+	in.model.Add(rec, num, t)
+}
+
+// prepare adds the companions to a parsed record, redacts it, and shows it
+// to the Observer (which does not read the model, so a batch's records
+// may be shown before the model takes them).
+func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
 	in.comp.Apply(rec)
+	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
+		in.input.Filtered++
+		if in.cfg.Observer != nil {
+			in.cfg.Observer.Rejected(num, source, "left out by --where, --since or --until")
+		}
+		return
+	}
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
 		// not redacted (chooseCompanions).
 		in.redact.Apply(rec)
 	}
-	in.model.Add(rec, num, t)
 	if in.cfg.Observer != nil {
 		in.cfg.Observer.Record(rec, num, source, t)
 	}
@@ -405,7 +424,17 @@ func (in *Ingester) Flush() {
 
 // Snapshot takes a snapshot of the model with the input accounting.
 func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
-	s := in.model.Snapshot(opt)
+	s, _ := in.SnapshotContext(context.Background(), opt)
+	return s
+}
+
+// SnapshotContext is Snapshot, given up when ctx is done (see
+// model.Model.SnapshotContext): the error is then ctx's.
+func (in *Ingester) SnapshotContext(ctx context.Context, opt model.SnapshotOptions) (*model.Snapshot, error) {
+	s, err := in.model.SnapshotContext(ctx, opt)
+	if err != nil {
+		return nil, err
+	}
 	in.labelTemplates(s)
 	s.Input = in.input
 	s.Input.Sources = append([]string(nil), in.input.Sources...)
@@ -413,7 +442,7 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 	s.Input.Faults = append([]string(nil), in.input.Faults...)
 	s.Input.Events = append([]parse.SourceEvent(nil), in.input.Events...)
 	s.Input.TimeField, s.Input.TimeFormat = in.times.Key(), in.times.Format()
-	return s
+	return s, nil
 }
 
 // TimeKey is the timestamp field found in the stream, "" if none.

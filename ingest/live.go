@@ -62,6 +62,9 @@ const (
 // reader to the owner in batches (see handoff), never one message per line;
 // a request is answered between two runs of at most chunkLines lines.
 type Live struct {
+	// ctx ends with the Live: a snapshot being taken then is given up,
+	// so that Stop never waits for a deep analysis.
+	ctx context.Context
 	in  *Ingester
 	src parse.Source
 	h   *handoff
@@ -118,6 +121,7 @@ func StartLiveWith(ctx context.Context, in *Ingester, src parse.Source, opt Live
 		done:      make(chan struct{}),
 	}
 	in.AddSource(src.Status().Name)
+	l.ctx = ctx
 	if opt.RawLines > 0 {
 		in.KeepRaw(opt.RawLines)
 	}
@@ -183,9 +187,19 @@ func (l *Live) setBaseline(b BaselineChoice) {
 }
 
 func (l *Live) takeBatch(b *batch) {
-	if err := l.in.takeBatch(b, l.serve); err != nil && l.err == nil {
+	if err := l.in.takeBatch(b, l.serveUnlessStopping); err != nil && l.err == nil {
 		l.err = err
 	}
+}
+
+// serveUnlessStopping serves between runs of lines, and says to stop
+// taking them once the Live is stopping: nobody will read the figures.
+func (l *Live) serveUnlessStopping() bool {
+	if l.ctx.Err() != nil {
+		return false
+	}
+	l.serve()
+	return true
 }
 
 // serve answers the requests already waiting, without waiting for any.
@@ -220,7 +234,10 @@ func (l *Live) frame(opt model.SnapshotOptions) *Frame {
 	// The source's events (rotations, truncations, gaps) go into the
 	// input accounting, so that the snapshot lists them as a report does.
 	l.in.setEvents(status.Events)
-	snap := l.in.Snapshot(opt)
+	snap, err := l.in.SnapshotContext(l.ctx, opt)
+	if err != nil {
+		return nil // stopping: Frame's caller gets ErrStopped
+	}
 	f := &Frame{Snap: snap, Source: status, Ended: l.ended, Err: l.err, Cost: time.Since(t0),
 		Baseline: l.in.Model().BaselineMode(), Deep: opt.Deep}
 	if e, ok := l.src.(interface{ ETA() (time.Duration, bool) }); ok && !l.ended {
@@ -258,6 +275,9 @@ func (l *Live) Frame(ctx context.Context, opt model.SnapshotOptions) (*Frame, er
 	}
 	select {
 	case f := <-r.reply:
+		if f == nil {
+			return nil, ErrStopped
+		}
 		return f, nil
 	case <-ctx.Done():
 		return nil, ctx.Err()

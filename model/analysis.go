@@ -1,6 +1,9 @@
 package model
 
-import "sort"
+import (
+	"sort"
+	"sync"
+)
 
 // Changes is what changed in the window against the baseline, and the
 // window's most surprising records.
@@ -66,8 +69,15 @@ func (m *Model) analyse(s *Snapshot, opt SnapshotOptions) {
 			k = 10
 		}
 		s.DeepRecords = m.deepRows()
-		s.Changes.Surprising = m.surprising(s, base, k)
+		// The two scans only read the model: they run side by side.
+		var wg sync.WaitGroup
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			s.Changes.Surprising = m.surprising(s, base, k)
+		}()
 		s.Determinants, s.DeterminantsCut = m.determinants(s)
+		wg.Wait()
 	}
 	if opt.Profile {
 		s.Profile = m.buildProfile(s)

@@ -27,6 +27,8 @@ type cellMap struct {
 	shift  uint
 	len    int
 	s      int64
+	// stale: counts changed without s (batch updates); see sum.
+	stale bool
 }
 
 // The matrix is limited by its cells only, not by a side: a field of

@@ -386,7 +386,7 @@ func (d *detSearch) spend(w int) bool {
 		return true
 	}
 	d.work += w
-	if d.work > detMaxWork {
+	if d.work > detMaxWork || d.m.cancelled() {
 		d.cut = true
 	}
 	return d.cut

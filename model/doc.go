@@ -15,7 +15,9 @@
 // in O(1): only the terms of the cells it touches change. S is kept in fixed
 // point (2^-30 bits per unit), so adding and removing the same records
 // returns exactly the same integer, with no floating-point drift however long
-// the stream: the incremental figures equal a recount bit for bit. The
+// the stream: the incremental figures equal a recount bit for bit. A batch
+// (AddBatch) changes a pair table's counts only, and its S is summed again
+// from them at the next snapshot: the same integers, so the same S. The
 // rounding of each term is below 5e-10 bits, so H is within 5e-10·K/N of the
 // exact value for a table of K cells. Exactness holds while N·log2(N) stays
 // below 2^33 (windows of up to about 250 million records).
@@ -32,6 +34,9 @@
 // The window and its tables:
 //   - model.go: Model, Add (intern, store, count pairs), eviction, which
 //     fields are tracked in pairs (the identifier rule), Rebuild.
+//   - batch.go, cellbatch.go: AddBatch, the same as Add on each record,
+//     done in passes (fields and pairs spread over the cores, Σ c·log c
+//     computed when a snapshot asks).
 //   - field.go, valuetable.go, values.go: a field's value table (text, or
 //     64-bit hashes for an identifier), its counts, display text.
 //   - cellmap.go: a pair's joint table (a dense matrix, or a hash map).
@@ -47,7 +52,7 @@
 //   - emi.go, reliable.go: expected mutual information, RFI, derived
 //     fields and best predictors.
 //   - deep.go, determinants.go, surprise.go: the Deep analyses over the
-//     newest records.
+//     newest records (run side by side, reading columns).
 //   - baseline.go, profile.go, shift.go, broken.go, analysis.go: baselines,
 //     the window's Profile, shifts and broken rules against it.
 package model

@@ -38,14 +38,12 @@ type field struct {
 
 	// byHash, when not nil, replaces values: the field is an identifier
 	// whose values are told apart by a 64-bit keyed hash and not kept as
-	// text (text is nil), lens[id] holding their lengths and hashes[id]
-	// their hashes (so that an id leaving the window leaves the table at
-	// once). This keeps a field of unique ids at about 30 bytes per window
+	// text (text is nil), ids holding each id's hash and length (so
+	// that an id leaving the window leaves the table at once). This keeps a field of unique ids at about 30 bytes per window
 	// value instead of 100 or more. Two values collide with probability
 	// about n²/2^65 (3e-6 for ten million values).
 	byHash *hashTable
-	lens   []int32
-	hashes []uint64
+	ids    idChunks
 	// samples holds the first few values of a hashed field, for display.
 	samples []string
 
@@ -124,10 +122,10 @@ func (f *field) remove(id uint32) {
 	f.counts[id] = c - 1
 	f.present--
 	if f.byHash != nil {
-		f.valueBytes -= int64(f.lens[id])
+		f.valueBytes -= int64(f.ids.length(id))
 		if c == 1 {
 			f.distinct--
-			f.byHash.remove(f.hashes[id], id)
+			f.byHash.remove(f.ids.hash(id), id)
 			f.free = append(f.free, id)
 		}
 		return
@@ -144,7 +142,7 @@ func (f *field) remove(id uint32) {
 // addHashed is add for a hashed field.
 func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	h := maphash.Bytes(hashSeed, v)
-	id := f.byHash.find(h, f.hashes)
+	id := probe(f.byHash, h, &f.ids)
 	if id == 0 {
 		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
@@ -158,11 +156,8 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 		} else {
 			id = uint32(len(f.counts))
 			f.counts = append(f.counts, 0)
-			f.lens = append(f.lens, 0)
-			f.hashes = append(f.hashes, 0)
 		}
-		f.lens[id] = int32(len(v))
-		f.hashes[id] = h
+		f.ids.set(id, h, int32(len(v)))
 		f.byHash.insert(h, id)
 		if len(f.samples) < 3 {
 			f.samples = append(f.samples, string(v))
@@ -175,7 +170,7 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	f.s += clogc(int64(c)+1) - clogc(int64(c))
 	f.counts[id] = c + 1
 	f.present++
-	f.valueBytes += int64(f.lens[id])
+	f.valueBytes += int64(f.ids.length(id))
 	return id
 }
 
@@ -186,8 +181,6 @@ func (f *field) hashValues() {
 		return
 	}
 	f.byHash = newHashTable(len(f.values))
-	f.lens = make([]int32, len(f.text))
-	f.hashes = make([]uint64, len(f.text))
 	// By id, not over the map, so that the samples kept do not depend on
 	// the map's random order.
 	for id, v := range f.text {
@@ -196,8 +189,7 @@ func (f *field) hashValues() {
 		}
 		h := maphash.String(hashSeed, v)
 		f.byHash.insert(h, uint32(id))
-		f.hashes[id] = h
-		f.lens[id] = int32(len(v))
+		f.ids.set(uint32(id), h, int32(len(v)))
 		if len(f.samples) < 3 {
 			f.samples = append(f.samples, v)
 		}

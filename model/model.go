@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"math"
 	"time"
 
@@ -23,6 +24,14 @@ type Options struct {
 	// of a hash past their first thousands (Counts needs the text to
 	// sketch an identifier with a hash that is the same in every run).
 	KeepText bool
+	// NoIdentifiers keeps every field out of the identifier rule: its
+	// values and its pair tables are kept whatever its share of distinct
+	// values. For the profile of a shard (a worker's partition and time
+	// bucket), where a field may look like an identifier over the shard's
+	// few records and not over the whole: merging decides on the totals
+	// (SnapshotFromCounts), which needs every pair's cells from every
+	// shard. Memory then grows with the shard's records, not its window.
+	NoIdentifiers bool
 }
 
 func (o Options) withDefaults() Options {
@@ -82,12 +91,17 @@ type Model struct {
 	gen  uint32
 
 	sinceReclass int
+	batch        batchState
 	// lastDetWork is the work the last determinant search did (tests).
 	lastDetWork int
 
 	// synthetic names the fields bitsift makes itself (see DeclareSynthetic).
 	synthetic map[string]Synthetic
 	base      baselines
+
+	// ctx is the context of the snapshot being taken (SnapshotContext);
+	// nil otherwise.
+	ctx context.Context
 }
 
 // New returns an empty model.
@@ -326,7 +340,7 @@ func (m *Model) reclassify() {
 	for i, f := range m.fields {
 		ratio := float64(f.distinct+f.overflowed) / math.Max(1, float64(f.present))
 		switch {
-		case !f.ident && f.present >= identMinPresent && ratio >= identEnter:
+		case !f.ident && !m.opt.NoIdentifiers && f.present >= identMinPresent && ratio >= identEnter:
 			f.ident = true
 			m.untrack(i)
 		case f.ident && f.overflowed == 0 && (ratio < identLeave || f.present == 0):

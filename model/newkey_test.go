@@ -32,9 +32,9 @@ func TestNewKeyEveryLineIsFastDeep(t *testing.T) {
 	if fields != m.opt.MaxFields {
 		t.Fatalf("%d fields, want the cap %d", fields, m.opt.MaxFields)
 	}
-	before := m.st.decoded
+	before := m.st.decoded.Load()
 	s := m.Snapshot(SnapshotOptions{Deep: true})
-	decoded := m.st.decoded - before
+	decoded := m.st.decoded.Load() - before
 	if s.DeepRecords != lines {
 		t.Fatalf("deep records %d, want %d", s.DeepRecords, lines)
 	}

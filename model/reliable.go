@@ -63,6 +63,9 @@ func (m *Model) fillEMI(s *Snapshot) {
 		return *hists[i]
 	}
 	for _, p := range m.pairs {
+		if m.cancelled() {
+			return
+		}
 		v, approx := expectedMI(hist(p.a), hist(p.b))
 		s.emi[p.a][p.b], s.emi[p.b][p.a] = v, v
 		s.emiApprox[p.a*k+p.b], s.emiApprox[p.b*k+p.a] = approx, approx

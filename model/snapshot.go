@@ -138,6 +138,9 @@ type Input struct {
 	// Parts counts lines held as parts of a record joined from several
 	// lines (CRI partial lines): Lines == records + Rejected + Parts.
 	Parts int64
+	// Filtered counts records left out by --where, --since or --until:
+	// then Lines == records + Rejected + Parts + Filtered.
+	Filtered int64
 	// TimeField and TimeFormat are the stream's timestamp field and its
 	// format (see parse.TimeFinder), "" when none was found.
 	TimeField, TimeFormat string
@@ -286,7 +289,7 @@ func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 		}
 	}
 	for _, p := range m.pairs {
-		h := entropyFromS(n, p.m.s)
+		h := entropyFromS(n, p.m.sum())
 		s.joint[p.a][p.b] = h
 		s.joint[p.b][p.a] = h
 	}

@@ -1,5 +1,7 @@
 package model
 
+import "sync/atomic"
+
 // store keeps the value ids of the records in the window, oldest first, so
 // that a record leaving the window can be taken off the counts, and so that
 // tables can be rebuilt from the window (when a field starts or stops being
@@ -28,8 +30,9 @@ type store struct {
 	width  int      // the widest row pushed: row(i) has this many ids
 	out    []uint32 // row's result, reused
 	// decoded counts the ids read back (by row and column): the work
-	// scans of the store actually do, for tests of their bounds.
-	decoded int64
+	// scans of the store actually do, for tests of their bounds. Atomic:
+	// the Deep analyses read columns side by side.
+	decoded atomic.Int64
 }
 
 const blockRows = 4096
@@ -63,7 +66,7 @@ func (s *store) at(i int) (*block, int) {
 func (s *store) row(i int) []uint32 {
 	b, r := s.at(i)
 	out := s.out[:s.width]
-	s.decoded += int64(s.width)
+	s.decoded.Add(int64(s.width))
 	clear(out[len(b.width):])
 	for j, w := range b.width {
 		c := b.cols[j]
@@ -262,7 +265,7 @@ func (s *store) column(j, lo, hi int, dst []uint32) []uint32 {
 		dst = make([]uint32, n)
 	}
 	dst = dst[:n]
-	s.decoded += int64(n)
+	s.decoded.Add(int64(n))
 	for i := 0; i < n; {
 		b, r := s.at(lo + i)
 		k := min(blockRows-r, n-i)

@@ -42,7 +42,14 @@ const (
 // SurprisingRecord is one of the most surprising records of the window.
 type SurprisingRecord struct {
 	Line int64
+	// Time is the record's time (Unix ns: its own, else arrival) and Age
+	// how many window records are newer (see Found).
+	Time int64
+	Age  int
 	Bits float64
+	// IDs holds the values of its identifier fields whose text the model
+	// keeps (a request id), to find the record elsewhere.
+	IDs map[string]string
 	// Record holds the values of the record's non-identifier fields.
 	Record map[string]string
 	// Because lists the fields that made it surprising, most first.
@@ -147,6 +154,9 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	totals := make([]float64, rows)
 	var col, gcol []uint32
 	for j, c := range costs {
+		if m.cancelled() {
+			return []SurprisingRecord{}
+		}
 		col = m.st.column(c.idx, lo, m.st.n, col)
 		if c.given >= 0 {
 			gcol = m.st.column(c.given, lo, m.st.n, gcol)
@@ -176,10 +186,15 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	out := make([]SurprisingRecord, 0, len(top))
 	for _, t := range top {
 		row := m.st.row(t.row)
-		sr := SurprisingRecord{Line: t.line, Bits: round9(t.bits), Record: map[string]string{}}
+		sr := SurprisingRecord{Line: t.line, Time: m.st.metaAt(t.row).time, Age: m.st.n - 1 - t.row,
+			Bits: round9(t.bits), Record: map[string]string{}, IDs: map[string]string{}}
 		for i, f := range m.fields {
-			if id := idAt(row, i); id != absent && s.Fields[i].Kind != Identifier && f.text != nil && id != overflow {
-				sr.Record[f.name] = f.text[id]
+			if id := idAt(row, i); id != absent && f.text != nil && id != overflow && int(id) < len(f.text) {
+				if s.Fields[i].Kind == Identifier {
+					sr.IDs[f.name] = f.text[id]
+				} else {
+					sr.Record[f.name] = f.text[id]
+				}
 			}
 		}
 		for j, c := range costs {

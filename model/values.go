@@ -11,7 +11,7 @@ func (f *field) replayValue(id uint32) string {
 		return f.text[id]
 	}
 	s := "#" + strconv.Itoa(int(id))
-	if n := int(f.lens[id]); n > len(s) {
+	if n := int(f.ids.length(id)); n > len(s) {
 		s += dots(n - len(s))
 	}
 	return s

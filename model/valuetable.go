@@ -48,8 +48,20 @@ func (t *hashTable) len() int { return t.used }
 // spreads evenly.
 func (t *hashTable) home(h uint64) uint64 { return h >> t.shift & t.mask }
 
-// find returns the id of hash h, or 0.
+// find returns the id of hash h, or 0; hashes[id] is id's hash.
 func (t *hashTable) find(h uint64, hashes []uint64) uint32 {
+	return probe(t, h, hashSlice(hashes))
+}
+
+// hashSource gives the full hash of an id.
+type hashSource interface{ hash(id uint32) uint64 }
+
+type hashSlice []uint64
+
+func (s hashSlice) hash(id uint32) uint64 { return s[id] }
+
+// probe is find with the ids' hashes from src.
+func probe[S hashSource](t *hashTable, h uint64, src S) uint32 {
 	tag := h >> 32
 	i := t.home(h)
 	for {
@@ -57,7 +69,7 @@ func (t *hashTable) find(h uint64, hashes []uint64) uint32 {
 		if s == 0 {
 			return 0
 		}
-		if s>>32 == tag && hashes[uint32(s)] == h {
+		if s>>32 == tag && src.hash(uint32(s)) == h {
 			return uint32(s)
 		}
 		i = (i + 1) & t.mask
@@ -126,3 +138,33 @@ func (t *hashTable) grow() {
 
 // bytes is the memory the table holds.
 func (t *hashTable) bytes() int { return len(t.slots) * 8 }
+
+// idChunks holds a hashed field's hash and value length per id in chunks
+// that never move: an id past the last chunk costs one new chunk, never a
+// copy of the others (a field of a million unique values would otherwise
+// copy, and leave as garbage, its arrays at every doubling).
+type idChunks struct {
+	h [][]uint64
+	l [][]int32
+}
+
+const (
+	idChunkBits = 14
+	idChunkMask = 1<<idChunkBits - 1
+)
+
+func (c *idChunks) hash(id uint32) uint64  { return c.h[id>>idChunkBits][id&idChunkMask] }
+func (c *idChunks) length(id uint32) int32 { return c.l[id>>idChunkBits][id&idChunkMask] }
+
+// set records id's hash and length, adding chunks up to id.
+func (c *idChunks) set(id uint32, h uint64, l int32) {
+	for int(id>>idChunkBits) >= len(c.h) {
+		c.h = append(c.h, make([]uint64, 1<<idChunkBits))
+		c.l = append(c.l, make([]int32, 1<<idChunkBits))
+	}
+	c.h[id>>idChunkBits][id&idChunkMask] = h
+	c.l[id>>idChunkBits][id&idChunkMask] = l
+}
+
+// bytes is the memory the chunks hold.
+func (c *idChunks) bytes() int { return len(c.h) << idChunkBits * 12 }

@@ -17,6 +17,9 @@ func BenchmarkParse(b *testing.B) {
 		lines := bytes.Split(bytes.TrimRight(data, "\n"), []byte("\n"))
 		b.Run(name, func(b *testing.B) {
 			f, _ := ByName(name)
+			if l, ok := f.(Learner); ok {
+				l.Learn(lines)
+			}
 			var rec Record
 			b.ReportAllocs()
 			b.SetBytes(int64(len(data)) / int64(len(lines)))

@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"syscall"
 	"time"
 
 	"github.com/fsnotify/fsnotify"
@@ -154,8 +155,7 @@ func (fl *Follower) Next(ctx context.Context) (Line, error) {
 		fl.started = true
 		fl.lastLine = time.Now()
 		if err := fl.begin(); err != nil {
-			fl.end()
-			return Line{}, &SourceError{Source: fl.path, Err: err}
+			return Line{}, fl.fail(&SourceError{Source: fl.path, Err: err})
 		}
 	}
 	for {
@@ -178,10 +178,7 @@ func (fl *Follower) Next(ctx context.Context) (Line, error) {
 				continue
 			}
 			if err != nil && !errors.Is(err, io.EOF) {
-				off := c.off
-				fl.event("fault", fmt.Sprintf("%s: read failed at byte %d: %v", fl.path, off, err))
-				fl.end()
-				return Line{}, &SourceError{Source: fl.path, Offset: off, Err: err}
+				return Line{}, fl.fail(&SourceError{Source: fl.path, Offset: c.off, Err: explainRead(err)})
 			}
 			l, emitted, again := fl.atEOF(c)
 			if emitted {
@@ -217,6 +214,10 @@ func (fl *Follower) begin() error {
 	}
 	if err != nil {
 		return explainOpen(err)
+	}
+	if c.fi.IsDir() {
+		c.close()
+		return &explained{"is a folder, not a file (follow one file in it)", syscall.EISDIR}
 	}
 	off := int64(0)
 	if !fl.opt.FromStart {
@@ -477,6 +478,18 @@ func (fl *Follower) note(s string) {
 	fl.mu.Lock()
 	fl.status.Note = s
 	fl.mu.Unlock()
+}
+
+// fail stops following on a fault, which is listed as an event and shown
+// as the state, so that no part of a screen says all is well.
+func (fl *Follower) fail(err *SourceError) error {
+	fl.event("fault", err.Error())
+	fl.end()
+	fl.mu.Lock()
+	fl.status.State = StateFailed
+	fl.status.Note = err.Error()
+	fl.mu.Unlock()
+	return err
 }
 
 // end stops following: Next returns io.EOF from now on.

@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 )
@@ -124,4 +125,21 @@ func TestFollowPauseMidLineNotIdle(t *testing.T) {
 	w.write(50)
 	w.close()
 	c.check(t, w.n)
+}
+
+// TestWatchDirectoryShowsFault: following a folder fails with a fault that
+// is listed as an event and shown as the state ("failed"), never "done"
+// with no fault listed.
+func TestWatchDirectoryShowsFault(t *testing.T) {
+	noLeaks(t)
+	dir := t.TempDir()
+	fl := newTestFollower(t, dir, FollowOptions{})
+	_, err := fl.Next(context.Background())
+	if err == nil || errors.Is(err, io.EOF) || !strings.Contains(err.Error(), "folder") {
+		t.Fatalf("Next on a folder: %v", err)
+	}
+	st := fl.Status()
+	if st.State != StateFailed || !hasEvent(st, "fault") {
+		t.Errorf("state %q, events %+v; want failed with a fault event", st.State, st.Events)
+	}
 }

@@ -321,9 +321,11 @@ func (h *Header) skip(line []byte, p int) int {
 }
 
 // token reads the token at p and classes it; form ≥ 0 asks for that time
-// form only.
+// form only, -1 for any, noTime for none.
 func (h *Header) token(line []byte, p, form int) headItem {
-	if f, ts, n, ok := matchHeadTimeForm(line[p:], form); ok {
+	if form == noTime {
+		// not a timestamp slot
+	} else if f, ts, n, ok := matchHeadTimeForm(line[p:], form); ok {
 		v0 := p + bytes.Index(line[p:p+n], ts)
 		return headItem{kind: hTime, form: f, start: p, end: p + n, v0: v0, v1: v0 + len(ts)}
 	}
@@ -361,12 +363,13 @@ func (h *Header) token(line []byte, p, form int) headItem {
 	return it
 }
 
+const noTime = -2
+
 func matchHeadTimeForm(b []byte, form int) (int, []byte, int, bool) {
 	if form < 0 {
 		return matchHeadTime(b)
 	}
-	f, ts, n, ok := matchHeadTime(b)
-	return f, ts, n, ok && f == form
+	return matchHeadTimeOf(b, headTimes[form:form+1], form)
 }
 
 // classify gives a header token its class.
@@ -426,8 +429,10 @@ func isHeadLevel(t []byte) bool {
 	} else if t[len(t)-1] == ':' {
 		t = t[:len(t)-1]
 	}
-	return isLevel(t) || len(t) == 4 && string(bytes.ToUpper(t)) == "WARN" || string(bytes.ToUpper(t)) == "SEVERE"
+	return isLevel(t) || bytes.EqualFold(t, severe)
 }
+
+var severe = []byte("SEVERE")
 
 func isLetter(c byte) bool { return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' }
 

@@ -16,7 +16,7 @@ func (h *Header) parse(line []byte, rec *Record) (n int, err error) {
 		if q >= len(line) {
 			break
 		}
-		form := -1
+		form := noTime
 		if s.kind == hTime {
 			form = s.form
 		}

@@ -53,12 +53,21 @@ var headTimes = []*headTime{
 // brackets); it returns the form, the timestamp's text (without brackets or
 // a trailing comma) and the bytes it takes up.
 func matchHeadTime(b []byte) (form int, ts []byte, n int, ok bool) {
+	return matchHeadTimeOf(b, headTimes, 0)
+}
+
+// matchHeadTimeOf tries the forms hs, the first of which is form base.
+func matchHeadTimeOf(b []byte, hs []*headTime, base int) (form int, ts []byte, n int, ok bool) {
 	in := b
 	bracket := len(b) > 0 && b[0] == '['
 	if bracket {
 		in = b[1:]
 	}
-	for i, h := range headTimes {
+	if len(in) == 0 || !isDigit(in[0]) && (in[0] < 'A' || in[0] > 'Z') {
+		return 0, nil, 0, false // every form starts with a digit or a capital
+	}
+	for j, h := range hs {
+		i := base + j
 		m := h.re.Find(in)
 		if m == nil {
 			continue

@@ -45,6 +45,9 @@ type jsonParser struct {
 
 // Parse implements Format.
 func (j *JSON) Parse(line []byte, rec *Record) error {
+	if j.flat(line, rec) {
+		return nil
+	}
 	p := jsonParser{s: line, rec: rec, key: &j.key}
 	j.key = j.key[:0]
 	p.ws()

@@ -53,3 +53,34 @@ func TestREADMEExamples(t *testing.T) {
 		}
 	}
 }
+
+// The README's --pattern examples for shapes the header format does not
+// read each parse the example line above them, every group taking part.
+func TestREADMEPatterns(t *testing.T) {
+	b, err := os.ReadFile("../README.md")
+	if err != nil {
+		t.Skipf("README.md: %v", err)
+	}
+	_, sec, _ := bytes.Cut(b, []byte("When a shape is not read, give it with `--pattern`"))
+	_, block, _ := bytes.Cut(sec, []byte("```\n"))
+	block, _, _ = bytes.Cut(block, []byte("```\n"))
+	lines := strings.Split(strings.TrimSpace(string(block)), "\n")
+	if len(lines) != 6 {
+		t.Fatalf("want three examples, got %q", lines)
+	}
+	for i := 0; i < 6; i += 2 {
+		example := strings.TrimPrefix(lines[i], "# ")
+		example, _, _ = strings.Cut(example, "  (")
+		example = strings.TrimSpace(example)
+		_, expr, _ := strings.Cut(lines[i+1], "--pattern '")
+		expr, _, _ = strings.Cut(expr, "' ")
+		p, err := NewPattern(expr)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var rec Record
+		if err := p.Parse([]byte(example), &rec); err != nil || rec.Len() != p.re.NumSubexp() {
+			t.Errorf("%q with %s: %v, %v", example, expr, err, fieldsOf(&rec))
+		}
+	}
+}

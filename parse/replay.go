@@ -50,7 +50,8 @@ func ParseSpeed(s string) (float64, error) {
 		return 0, nil
 	}
 	f, err := strconv.ParseFloat(strings.TrimSuffix(s, "x"), 64)
-	if err != nil || f <= 0 || f > 1e9 {
+	if err != nil || !(f > 0 && f <= 1e9) { // NaN fails both
+
 		return 0, fmt.Errorf("speed %q: use max or a factor above 0 such as 1, 10 or 0.5", s)
 	}
 	return f, nil
@@ -69,16 +70,20 @@ func ParseSpeed(s string) (float64, error) {
 //
 // Only one goroutine may call Next.
 type Replayer struct {
-	files *FileSource
+	files Source // a FileSource over the ordered files, or any source (replay_source.go)
 	opt   ReplayOptions
 	clock Clock
 	order []string
 
 	format Format // for reading timestamps; nil: no pacing possible
-	rec    Record
-	times  TimeFinder
-	prevT  int64
-	haveT  bool
+	// learning: a source replayer still gathering sample lines to detect
+	// format from (replay_source.go).
+	learning bool
+	sample   [][]byte
+	rec      Record
+	times    TimeFinder
+	prevT    int64
+	haveT    bool
 
 	wake chan struct{}
 
@@ -152,6 +157,7 @@ func (r *Replayer) Next(ctx context.Context) (Line, error) {
 // timestamp and the previous one's.
 func (r *Replayer) gapBefore(line []byte) time.Duration {
 	if r.format == nil {
+		r.learn(line)
 		return 0
 	}
 	r.rec.Reset()

@@ -18,6 +18,11 @@ func SpreadSample(path string, n int) [][]byte {
 	if path == "-" || n <= 0 {
 		return nil
 	}
+	// Only regular files: opening a FIFO waits for a writer (and would
+	// take data from it), a device may never end.
+	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
+		return nil
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil

@@ -44,6 +44,7 @@ const (
 	StateWaiting   SourceState = "waiting"   // waiting for a file to appear
 	StatePaused    SourceState = "paused"    // a replay paused by the user
 	StateDone      SourceState = "done"      // every input read to its end
+	StateFailed    SourceState = "failed"    // stopped by a fault (listed in Events)
 )
 
 // SourceStatus describes a source at one moment.
@@ -56,6 +57,20 @@ type SourceStatus struct {
 	Events     []SourceEvent
 	// Note is a short line for the user (e.g. "gap of 3m12s shortened").
 	Note string
+	// Parts are the partitions of a partitioned source (a Kafka topic),
+	// nil for files.
+	Parts []PartStatus
+}
+
+// PartStatus is one partition of a partitioned source.
+type PartStatus struct {
+	Name     string
+	Position int64 // the next offset to read
+	End      int64 // the log's end (high watermark) as last seen; -1 unknown
+	Lag      int64 // End - Position; -1 unknown
+	Records  int64 // records read from it
+	// Until is where a bounded read stops (report, replay); -1 none.
+	Until int64
 }
 
 // SourceEvent is something that happened to an input: rotation,
@@ -80,8 +95,10 @@ type FileSource struct {
 	name  string
 
 	statusBox
-	count *countingReader
-	buf   *bufio.Reader // between count and the decompressor
+	ctx      context.Context // of the Next call under way: reads give up when it ends
+	stopRead func() bool     // undoes the context's hold on the open file
+	count    *countingReader
+	buf      *bufio.Reader // between count and the decompressor
 }
 
 // NewFileSource reads paths in order with lines of at most maxLine bytes.
@@ -127,6 +144,7 @@ func itoa(n int) string {
 
 // Next implements Source.
 func (fs *FileSource) Next(ctx context.Context) (Line, error) {
+	fs.ctx = ctx
 	for {
 		if err := ctx.Err(); err != nil {
 			return Line{}, err
@@ -138,7 +156,10 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 			}
 			p := fs.paths[fs.idx]
 			fs.idx++
-			if err := fs.open(p); err != nil {
+			if err := fs.open(ctx, p); err != nil {
+				if ctx.Err() != nil {
+					return Line{}, ctx.Err()
+				}
 				fs.event("fault", p+": "+err.Error())
 				return Line{}, &SourceError{Source: p, Err: err}
 			}
@@ -153,6 +174,11 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 			return Line{Num: num, Source: fs.name, TooLong: true}, nil
 		case errors.Is(err, io.EOF):
 			fs.closeCur()
+		case ctx.Err() != nil:
+			// Interrupted in a read (a stream with no newline, a quiet
+			// FIFO): not a fault of the input.
+			fs.closeCur()
+			return Line{}, ctx.Err()
 		default:
 			name := fs.name
 			// The stored file's offset of the fault: what was read from
@@ -166,7 +192,7 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 	}
 }
 
-func (fs *FileSource) open(p string) error {
+func (fs *FileSource) open(ctx context.Context, p string) error {
 	var raw io.ReadCloser
 	if p == "-" {
 		in := fs.Stdin
@@ -175,10 +201,13 @@ func (fs *FileSource) open(p string) error {
 		}
 		raw = io.NopCloser(in)
 	} else {
-		f, err := os.Open(p)
+		f, err := openCancellable(ctx, p)
 		if err != nil {
 			return explainOpen(err)
 		}
+		// A read from a FIFO or socket that waits for data ends when ctx
+		// does (regular files take no deadline, and do not wait).
+		fs.stopRead = context.AfterFunc(ctx, func() { f.SetReadDeadline(time.Now()) })
 		raw = f
 	}
 	fs.count = &countingReader{r: raw, fs: fs}
@@ -194,6 +223,10 @@ func (fs *FileSource) open(p string) error {
 }
 
 func (fs *FileSource) closeCur() {
+	if fs.stopRead != nil {
+		fs.stopRead()
+		fs.stopRead = nil
+	}
 	if fs.cur != nil {
 		fs.cur.Close()
 	}
@@ -243,6 +276,11 @@ type countingReader struct {
 }
 
 func (c *countingReader) Read(p []byte) (int, error) {
+	if ctx := c.fs.ctx; ctx != nil && ctx.Err() != nil {
+		// A stream with no newline (/dev/zero) is read without end while
+		// the line is dropped as too long: it stops here.
+		return 0, ctx.Err()
+	}
 	n, err := c.r.Read(p)
 	c.n += int64(n)
 	c.fs.mu.Lock()

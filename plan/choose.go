@@ -27,6 +27,7 @@ type chooser struct {
 func Choose(s *model.Snapshot, opt Options) *Plan {
 	// Fields bitsift made itself are not in the log: there is nothing to
 	// drop, and nothing to rebuild from.
+	all := s
 	s = s.LogFields()
 	c := &chooser{s: s, opt: opt, dropped: make([]bool, len(s.Fields)), exact: make([]bool, len(s.Fields))}
 	pins := func(i int) Pin { return opt.Pins[s.Fields[i].Name] }
@@ -62,7 +63,9 @@ func Choose(s *model.Snapshot, opt Options) *Plan {
 	if opt.MaxLoss > 0 {
 		c.lossy(free)
 	}
-	return c.plan()
+	p := c.plan()
+	p.hints, p.recordPins = hints(all, s), opt.RecordPins
+	return p
 }
 
 // lossy drops, cheapest bits per byte first, the fields that fit in the
@@ -164,7 +167,11 @@ func (c *chooser) feasible() bool {
 func (c *chooser) bitsLost() float64 {
 	sum := 0.0
 	for i, d := range c.dropped {
-		if d && c.s.Fields[i].Kind != model.Constant {
+		switch {
+		case !d || c.s.Fields[i].Kind == model.Constant:
+		case c.opt.Pins[c.s.Fields[i].Name] == PinDrop:
+			sum += c.s.Fields[i].Entropy
+		default:
 			_, bits := c.predictor(i)
 			sum += bits
 		}
@@ -222,6 +229,14 @@ func (c *chooser) plan() *Plan {
 			pf.BitsLost = bits
 			p.EstimatedSaving += f.BytesPerRecord
 			switch {
+			case pf.Pin == PinDrop:
+				// The user asked for it gone: no table is shipped, so
+				// nothing rebuilds it, whatever determines it.
+				pf.Action, pf.BitsLost = Drop, f.Entropy
+				pf.Reason = fmt.Sprintf("no table: %.3g bits lost", f.Entropy)
+				if g >= 0 {
+					pf.Reason += ", " + s.Fields[g].Name + " would rebuild it"
+				}
 			case g >= 0 && bits <= LosslessTolerance && c.opt.inexact[f.Name] == "":
 				g = c.determinant(i)
 				pf.Action, pf.Exact, pf.BitsLost = Derive, true, 0

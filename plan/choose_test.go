@@ -59,10 +59,11 @@ func TestMutualDetermination(t *testing.T) {
 }
 
 // TestPins: a pinned keep stays; a pinned drop goes even when it loses
-// bits, and fields it determined find another determinant or stay.
+// bits, without a table (nothing rebuilds it), and fields it determined
+// find another determinant or stay.
 func TestPins(t *testing.T) {
 	p := demoPlan(t, 10_000, Options{Pins: map[string]Pin{"zone": PinKeep, "host": PinDrop}})
-	want := map[string]Action{"zone": Keep, "host": Derive, "region": Derive, "svc": Drop}
+	want := map[string]Action{"zone": Keep, "host": Drop, "region": Derive, "svc": Drop}
 	for name, a := range want {
 		if f := p.Field(name); f.Action != a {
 			t.Errorf("%s: %s (%s), want %s", name, f.Action, f.Reason, a)
@@ -71,10 +72,10 @@ func TestPins(t *testing.T) {
 	if f := p.Field("region"); !slices.Equal(f.From, []string{"zone"}) || !f.Exact {
 		t.Errorf("region from %v exact %v, want from zone, exact", f.From, f.Exact)
 	}
-	// H(host|zone) = log2 4 = 2 bits: each zone has four equally likely
-	// hosts (package demo).
-	if f := p.Field("host"); math.Abs(f.BitsLost-2) > 0.05 || p.Lossless {
-		t.Errorf("host loses %.3f bits (want about 2), lossless %v", f.BitsLost, p.Lossless)
+	// H(host) = log2 12 = 3.585 bits: twelve equally likely hosts
+	// (package demo); with no table, all of it is lost.
+	if f := p.Field("host"); math.Abs(f.BitsLost-math.Log2(12)) > 0.05 || p.Lossless {
+		t.Errorf("host loses %.3f bits (want about 3.585), lossless %v", f.BitsLost, p.Lossless)
 	}
 	if len(p.Notes) == 0 {
 		t.Error("no note that the pinned drop exceeds --max-loss 0")
@@ -147,4 +148,20 @@ func TestChainBound(t *testing.T) {
 			t.Errorf("bound %v outside [H(a,b,c) = %v, ΣH = %v]", b, joint, sum)
 		}
 	})
+}
+
+// TestPinnedDropIsDrop: a derived field pinned to drop is dropped, not
+// derived (no table ships), and the plan says what that loses: the
+// field's whole entropy. The demo's relation (package demo): route
+// determines method.
+func TestPinnedDropIsDrop(t *testing.T) {
+	free := demoPlan(t, 5_000, Options{})
+	if f := free.Field("method"); f.Action != Derive {
+		t.Fatalf("unpinned method: %s, want derive", f.Action)
+	}
+	p := demoPlan(t, 5_000, Options{Pins: map[string]Pin{"method": PinDrop}})
+	f := p.Field("method")
+	if f.Action != Drop || f.Table != nil || f.BitsLost != f.Entropy || p.Lossless {
+		t.Errorf("pinned method: %s, table %v, lost %v of H %v, lossless %v", f.Action, f.Table, f.BitsLost, f.Entropy, p.Lossless)
+	}
 }

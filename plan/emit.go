@@ -89,26 +89,6 @@ func jqPath(path []string) string {
 	return string(b)
 }
 
-// WriteJQ writes a jq program that applies the plan's deletions to JSON
-// lines: jq -c -f plan.jq < in.jsonl > out.jsonl.
-func WriteJQ(w io.Writer, p *Plan) error {
-	var b strings.Builder
-	p.comment(&b)
-	b.WriteString("# Use: jq -c -f THIS_FILE < in.jsonl > out.jsonl\n")
-	ps := p.paths()
-	if len(ps) == 0 {
-		b.WriteString("# Nothing to delete.\n.\n")
-	} else {
-		exprs := make([]string, len(ps))
-		for i, path := range ps {
-			exprs[i] = jqPath(path)
-		}
-		b.WriteString("del(" + strings.Join(exprs, ", ") + ")\n")
-	}
-	_, err := io.WriteString(w, b.String())
-	return err
-}
-
 // ottlSafe says whether a key can be written in an OTTL string literal and
 // a single-quoted YAML scalar without any escape we are unsure of.
 func ottlSafe(s string) bool {

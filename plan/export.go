@@ -41,21 +41,91 @@ type Export struct {
 	Notes           []string      `json:"notes"`
 	Caution         string        `json:"caution"`
 	RuleCaution     string        `json:"rule_caution,omitempty"`
+	// RecordReductions are the classes of routine records (measured plans
+	// only); SamplingCaution is set when there are any.
+	RecordReductions []ExportReduction `json:"record_reductions"`
+	SamplingCaution  string            `json:"sampling_caution,omitempty"`
+}
+
+// ExportReduction is one class of routine records. bytes_saved_per_day is
+// null when the record rate is unknown; bytes_saved_per_record is always
+// there.
+type ExportReduction struct {
+	ID                 string          `json:"id"`
+	Class              string          `json:"class"`
+	Condition          string          `json:"condition"`
+	Action             ReductionAction `json:"action"`
+	KeepOneIn          float64         `json:"keep_one_in"`
+	ShareRecords       float64         `json:"share_records"`
+	ShareBytes         float64         `json:"share_bytes"`
+	SavedPerDay        ExportSize      `json:"bytes_saved_per_day"`
+	SavedPerRecord     ExportSize      `json:"bytes_saved_per_record"`
+	BitsLost           float64         `json:"bits_lost_per_record"`
+	BitsPerClassRecord float64         `json:"bits_per_class_record"`
+	Ratio              float64         `json:"bits_per_byte_vs_stream,omitempty"`
+	Ignore             []string        `json:"ignored_fields,omitempty"`
+	Span               string          `json:"span,omitempty"`
+	Findings           int             `json:"findings_in_class"`
+	FindingExamples    []string        `json:"finding_examples"`
+	Warning            string          `json:"warning,omitempty"`
+	Pin                string          `json:"pin,omitempty"`
+	Applied            bool            `json:"in_exports"`
 }
 
 // ExportDeriv is one derived field: the fields it is rebuilt from and the
 // rows of its mapping table.
 type ExportDeriv struct {
-	Field        string   `json:"field"`
-	From         []string `json:"from"`
-	TableEntries int      `json:"table_entries"`
-	Exact        bool     `json:"exact"`
+	Field        string      `json:"field"`
+	From         []string    `json:"from"`
+	TableEntries int         `json:"table_entries"`
+	Exact        bool        `json:"exact"`
+	Table        []ExportRow `json:"table"`
 }
 
-// ExportConst is a dropped constant and the value kept once.
+// ExportRow is one row of a mapping table: the determinants' values and
+// the derived value. For JSON input the values are as the log wrote them
+// (200 stays a number); for other formats they are strings. A value the
+// record lacks is written {"absent": true}, which no log value can be: a
+// non-empty object is never one field's value, its members are fields.
+type ExportRow struct {
+	From  []json.RawMessage `json:"from"`
+	Value json.RawMessage   `json:"value"`
+}
+
+// ExportConst is a dropped constant and the value kept once (as the log
+// wrote it, for JSON input).
 type ExportConst struct {
-	Field string `json:"field"`
-	Value string `json:"value"`
+	Field string          `json:"field"`
+	Value json.RawMessage `json:"value"`
+}
+
+// absentJSON is how a table writes "the record lacks the field".
+var absentJSON = json.RawMessage(`{"absent":true}`)
+
+// JSON is the value as the plan's JSON writes it.
+func (v TableValue) JSON(raw bool) json.RawMessage {
+	switch {
+	case v.Absent:
+		return absentJSON
+	case raw:
+		return json.RawMessage(v.Text)
+	}
+	return json.RawMessage(appendJSONString(nil, v.Text))
+}
+
+func exportRows(t *Table) []ExportRow {
+	rows := []ExportRow{}
+	if t == nil {
+		return rows
+	}
+	for _, r := range t.Rows {
+		e := ExportRow{From: make([]json.RawMessage, len(r.From)), Value: r.Value.JSON(t.JSON)}
+		for i, f := range r.From {
+			e.From[i] = f.JSON(t.JSON)
+		}
+		rows = append(rows, e)
+	}
+	return rows
 }
 
 // ExportBefore holds the sizes before and after the plan.
@@ -108,10 +178,14 @@ func (p *Plan) Export() *Export {
 		case f.Action == Drop:
 			e.Drop = append(e.Drop, f.Name)
 			if f.Exact {
-				e.Constants = append(e.Constants, ExportConst{f.Name, f.Value})
+				v := TableValue{Text: f.Value}.JSON(false)
+				if f.Table != nil && len(f.Table.Rows) == 1 {
+					v = f.Table.Rows[0].Value.JSON(f.Table.JSON)
+				}
+				e.Constants = append(e.Constants, ExportConst{f.Name, v})
 			}
 		case f.Action == Derive:
-			e.Derive = append(e.Derive, ExportDeriv{f.Name, f.From, f.TableEntries, f.Exact})
+			e.Derive = append(e.Derive, ExportDeriv{f.Name, f.From, f.TableEntries, f.Exact, exportRows(f.Table)})
 		}
 		e.Fields = append(e.Fields, ExportField{
 			Name: f.Name, Entropy: round(f.Entropy), Huffman: round(f.Huffman), Action: f.Action,
@@ -131,6 +205,24 @@ func (p *Plan) Export() *Export {
 		e.SavedPerDay = ExportSize{&r, &c}
 		rate := round(p.RecordsPerSecond)
 		e.RecordsPerSec = &rate
+	}
+	e.RecordReductions = []ExportReduction{}
+	for i := range p.Reductions {
+		r := &p.Reductions[i]
+		x := ExportReduction{ID: r.ID, Class: r.Class, Condition: r.Condition(), Action: r.Action,
+			KeepOneIn: round(r.KeepOneIn), ShareRecords: round(r.ShareRecords), ShareBytes: round(r.ShareBytes),
+			SavedPerRecord: size(r.Saved), BitsLost: round(r.BitsLostPerRecord), BitsPerClassRecord: round(r.BitsPerClassRecord),
+			Ratio: round(r.Ratio), Ignore: r.Ignore, Span: r.Span, Findings: r.Findings,
+			FindingExamples: append([]string{}, r.FindingExamples...), Warning: r.Warning(), Pin: r.Pin.String(), Applied: r.Applied()}
+		if p.RecordsPerSecond > 0 {
+			d := p.RecordsPerSecond * 86400
+			raw, c := math.Round(r.Saved.Raw*d), math.Round(r.Saved.Compressed*d)
+			x.SavedPerDay = ExportSize{&raw, &c}
+		}
+		e.RecordReductions = append(e.RecordReductions, x)
+	}
+	if len(p.Reductions) > 0 {
+		e.SamplingCaution = SamplingCaution
 	}
 	sort.Strings(e.Drop)
 	return e

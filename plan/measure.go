@@ -35,6 +35,13 @@ type Measurement struct {
 	// written under in the sample: ["http","status"] for a nested key,
 	// ["id.orig_h"] for a flat key with a dot in its name.
 	Paths map[string][][]string
+	// Orders gives, for JSON input, the order of each object's keys in the
+	// sample (by the object's path, keys joined by NUL; "" is the record),
+	// which the restore program puts rebuilt keys back in.
+	Orders map[string][]string
+	// Reordered counts records whose values all came back but not in
+	// their order (the records disagree on one key order).
+	Reordered int
 }
 
 // Size is a size in bytes per record.
@@ -63,7 +70,6 @@ type measurer struct {
 	drop     map[string]bool
 	counts   map[string]map[string]int64 // field → value text → records
 	tables   map[string]map[value]map[value]int
-	raws     map[string]map[string][]byte // JSON text of table values
 	paths    map[string]map[string][]string
 	before   []byte
 	after    []byte
@@ -71,6 +77,11 @@ type measurer struct {
 	backRec  parse.Record
 	firstVal map[string]string
 	rec      map[string]string // reused by count
+	// json: values are compact JSON text (200 and "200" differ), read from
+	// the tree; otherwise the parsed text.
+	json   bool
+	orders orders
+	lines  int // records counted
 }
 
 // Measure applies p to the sample's records, in their input format: it
@@ -84,10 +95,11 @@ func (p *Plan) Measure(smp *Sample) error {
 		return fmt.Errorf("plan: cannot measure records of format %q: %w", p.Format, err)
 	}
 	m := &measurer{p: p, drop: map[string]bool{}, counts: map[string]map[string]int64{},
-		tables: map[string]map[value]map[value]int{}, raws: map[string]map[string][]byte{},
-		paths: map[string]map[string][]string{}, firstVal: map[string]string{}}
+		tables: map[string]map[value]map[value]int{},
+		paths:  map[string]map[string][]string{}, firstVal: map[string]string{}, json: p.Format == "json",
+		orders: orders{}}
 	meas := &Measurement{Serialised: "logfmt"}
-	if p.Format == "json" {
+	if m.json {
 		meas.Serialised = "json"
 	}
 	m.back, _ = parse.ByName(meas.Serialised)
@@ -97,10 +109,10 @@ func (p *Plan) Measure(smp *Sample) error {
 		}
 		if f.Action == Derive {
 			m.tables[f.Name] = map[value]map[value]int{}
-			m.raws[f.Name], m.raws[f.From[0]] = map[string][]byte{}, map[string][]byte{}
 		}
 		m.counts[f.Name] = map[string]int64{}
 	}
+	cls := newClasses(p, m.json)
 	var bl, al []byte
 	smp.Each(func(line []byte) {
 		var ok bool
@@ -112,14 +124,22 @@ func (p *Plan) Measure(smp *Sample) error {
 		meas.Records++
 		m.before = append(append(m.before, bl...), '\n')
 		m.after = append(append(m.after, al...), '\n')
-		m.count(bl)
+		if !m.json {
+			m.count(bl)
+		}
+		cls.add(m.rec, len(bl)+1)
 	})
 	if meas.Records == 0 {
 		return fmt.Errorf("plan: none of the %d sample lines could be measured as %s records", smp.Len(), p.Format)
 	}
 	tables := m.buildTables()
 	tableText := m.writeTables(tables)
-	m.verify(tables, meas)
+	if m.json {
+		meas.Orders = m.orders.export()
+		m.verifyJSON(tables, meas)
+	} else {
+		m.verify(tables, meas)
+	}
 
 	n := float64(meas.Records)
 	enc, err := zstd.NewWriter(nil, zstd.WithEncoderLevel(zstd.SpeedDefault), zstd.WithEncoderConcurrency(1))
@@ -135,17 +155,7 @@ func (p *Plan) Measure(smp *Sample) error {
 	meas.Before = Size{float64(len(m.before)) / n, size(m.before) / n}
 	meas.After = Size{float64(len(afterAll)) / n, size(afterAll) / n}
 	meas.Tables = Size{float64(len(tableText)) / n, meas.After.Compressed - size(m.after)/n}
-	meas.Paths = map[string][][]string{}
-	for name, ps := range m.paths {
-		keys := make([]string, 0, len(ps))
-		for k := range ps {
-			keys = append(keys, k)
-		}
-		sort.Strings(keys)
-		for _, k := range keys {
-			meas.Paths[name] = append(meas.Paths[name], ps[k])
-		}
-	}
+	meas.Paths = m.allPaths()
 	for i := range p.Fields {
 		f := &p.Fields[i]
 		cs := m.counts[f.Name]
@@ -162,6 +172,7 @@ func (p *Plan) Measure(smp *Sample) error {
 		if f.Action == Drop && f.Exact && f.Value == "" {
 			f.Value = m.firstVal[f.Name]
 		}
+		f.Table = m.table(f, tables)
 		if t, ok := tables[f.Name]; ok {
 			f.TableEntries = len(t)
 		} else if f.Action == Drop && f.Exact {
@@ -170,6 +181,23 @@ func (p *Plan) Measure(smp *Sample) error {
 		if f.Exact && f.Mismatches > 0 {
 			p.Lossless = false
 		}
+	}
+	idBits := 0.0
+	for _, name := range p.hints.ignore {
+		if f := p.Field(name); f != nil {
+			idBits += f.Entropy
+		}
+	}
+	p.Reductions = cls.reductions(m.before, size, idBits, meas.Paths)
+	if meas.Records < MinReductionRecords {
+		p.Notes = append(p.Notes, fmt.Sprintf("record classes are judged on %d measured records or more; %d were measured", MinReductionRecords, meas.Records))
+	}
+	for i := range p.Reductions {
+		p.Reductions[i].Pin = p.recordPins[p.Reductions[i].Class]
+	}
+	if meas.Reordered > 0 {
+		p.Notes = append(p.Notes, fmt.Sprintf("%d sample records disagree with the others on the order of their keys: "+
+			"restore gives them their values back, but in the common order", meas.Reordered))
 	}
 	p.Measured = meas
 	return nil
@@ -185,8 +213,13 @@ func (m *measurer) serialise(in parse.Format, line, bl, al []byte) ([]byte, []by
 		}
 		bl = appendTree(bl, tree, "", nil)
 		al = appendTree(al, tree, "", m.drop)
+		if m.rec == nil {
+			m.rec = map[string]string{}
+		}
+		clear(m.rec)
+		m.orders.note(tree, nil)
 		walk(tree, "", nil, func(key string, path []string, raw []byte) {
-			if m.drop[key] {
+			{
 				ps := m.paths[key]
 				if ps == nil {
 					ps = map[string][]string{}
@@ -197,17 +230,11 @@ func (m *measurer) serialise(in parse.Format, line, bl, al []byte) ([]byte, []by
 					ps[j] = path
 				}
 			}
-			if r, ok := m.raws[key]; ok && len(r) < 1<<16 {
-				var v value
-				if err := m.back.Parse(append(append([]byte(`{"k":`), raw...), '}'), &m.backRec); err == nil && m.backRec.Len() == 1 {
-					v.text = string(m.backRec.Value(0))
-				}
-				m.backRec.Reset()
-				if _, ok := r[v.text]; !ok {
-					r[v.text] = bytes.Clone(raw)
-				}
+			if _, dup := m.rec[key]; !dup {
+				m.rec[key] = string(raw)
 			}
 		})
+		m.take(m.rec)
 		return bl, al, true
 	}
 	m.recs.Reset()
@@ -243,10 +270,16 @@ func (m *measurer) count(line []byte) {
 	if m.rec == nil {
 		m.rec = map[string]string{}
 	}
-	rec := m.rec
-	if !m.read(line, rec) {
+	if !m.read(line, m.rec) {
 		return
 	}
+	m.take(m.rec)
+}
+
+// take counts one record's values (field → text) into the value counts and
+// the tables.
+func (m *measurer) take(rec map[string]string) {
+	m.lines++
 	for k, v := range rec {
 		if cs, ok := m.counts[k]; ok {
 			cs[v]++
@@ -317,11 +350,7 @@ func (m *measurer) writeTables(tables map[string]map[value]value) []byte {
 				first = false
 				out = appendJSONString(out, k)
 				out = append(out, ':')
-				if raw, ok := m.raws[k][vals[i].text]; ok {
-					out = append(out, raw...)
-				} else {
-					out = appendJSONString(out, vals[i].text)
-				}
+				out = append(out, vals[i].text...)
 			}
 			out = append(out, '}', '\n')
 			return

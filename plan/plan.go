@@ -103,6 +103,10 @@ type Options struct {
 	// Batch is the number of records a mapping table is shipped with, to
 	// spread its size over (default min(window records, DefaultBatch)).
 	Batch int
+	// RecordPins are the user's choices for record reductions, by class:
+	// PinKeep keeps the class whole, PinDrop reduces it even though it
+	// holds findings.
+	RecordPins map[string]Pin
 	// RecordTimes: the snapshot's record times come from the records'
 	// timestamps, so the record rate (and the saving per day) is known.
 	RecordTimes bool
@@ -137,6 +141,18 @@ type Plan struct {
 	Measured *Measurement
 	// Notes say what the plan could not do and why, for the reader.
 	Notes []string
+	// Reductions are the classes of routine records found on the measured
+	// records (filled by Measure; see records.go).
+	Reductions []Reduction
+
+	hints      recordHints
+	recordPins map[string]Pin
+}
+
+// Applied says whether the plan's exports carry the reduction: the user
+// pinned it, or it holds no findings and the user did not keep it whole.
+func (r *Reduction) Applied() bool {
+	return r.Pin == PinDrop || r.Pin == Unpinned && r.Findings == 0
 }
 
 // Field is one field's place in a plan.
@@ -166,6 +182,9 @@ type Field struct {
 	Mismatches    int     // sample records where the rebuilt value differs
 	SampleEntropy float64 // H(F) over the sample, bits
 	Huffman       float64 // expected Huffman code length over the sample, bits
+	// Table rebuilds a dropped constant or derived field: nil for the rest
+	// and before Measure.
+	Table *Table
 }
 
 // Dropped says whether the plan deletes the field.

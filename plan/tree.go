@@ -89,8 +89,10 @@ func walk(kids []node, prefix string, path []string, fn func(key string, path []
 }
 
 // appendTree writes the object compactly, leaving out the leaves whose
-// flattened key drop holds. An object whose members are all left out stays
-// as {}, as jq's del leaves it.
+// flattened key drop holds. An object whose members are all left out is
+// left out too (the jq program deletes it the same way), while an object
+// that was empty in the line stays: restore tells the two apart because
+// only a rebuilt member brings an object back.
 func appendTree(dst []byte, kids []node, prefix string, drop map[string]bool) []byte {
 	dst = append(dst, '{')
 	first := true
@@ -99,7 +101,7 @@ func appendTree(dst []byte, kids []node, prefix string, drop map[string]bool) []
 		if prefix != "" {
 			key = prefix + "." + k.key
 		}
-		if k.raw != nil && drop[key] {
+		if k.raw != nil && drop[key] || k.raw == nil && drop != nil && !keepsAny(k.kids, key, drop) {
 			continue
 		}
 		if !first {
@@ -115,6 +117,17 @@ func appendTree(dst []byte, kids []node, prefix string, drop map[string]bool) []
 		}
 	}
 	return append(dst, '}')
+}
+
+// keepsAny says whether any leaf under kids survives drop.
+func keepsAny(kids []node, prefix string, drop map[string]bool) bool {
+	for _, k := range kids {
+		key := prefix + "." + k.key
+		if k.raw != nil && !drop[key] || k.raw == nil && keepsAny(k.kids, key, drop) {
+			return true
+		}
+	}
+	return false
 }
 
 // appendJSONString writes s as a JSON string, escaping only what JSON

@@ -138,6 +138,11 @@ var prefix = []byte(`{"schema":"bitsift.profile/`)
 // IsProfile says whether the file at path is a profile: zstd data whose
 // text starts as a profile's does. It reads a few kilobytes at most.
 func IsProfile(path string) bool {
+	// Only regular files: opening a FIFO waits for a writer and reading it
+	// would take the log's first bytes; a device may never end.
+	if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
+		return false
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return false

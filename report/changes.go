@@ -38,11 +38,19 @@ type BreakCase struct {
 	TargetAbsent bool   `json:"target_absent,omitempty"`
 	Expected     string `json:"expected"`
 	Count        int    `json:"count"`
+	// File, Line and Time trace the newest window record with this pair
+	// (set by AddTraces).
+	File string `json:"file,omitempty"`
+	Line int64  `json:"line,omitempty"`
+	Time string `json:"time,omitempty"`
 }
 
 // Surprising is one of the most surprising records.
 type Surprising struct {
+	File          string            `json:"file,omitempty"`
 	Line          int64             `json:"line"`
+	Time          string            `json:"time,omitempty"`
+	IDs           map[string]string `json:"ids,omitempty"`
 	Bits          float64           `json:"bits"`
 	Record        map[string]string `json:"record"`
 	Because       []string          `json:"because"`
@@ -73,6 +81,17 @@ func addChanges(r *Report, s *model.Snapshot) {
 	r.DeterminantsCut = s.DeterminantsCut
 	r.DeepRecords = s.DeepRecords
 	r.Profile = s.Profile
+	if p := r.Profile; p != nil && (p.Fields == nil || p.Rules == nil) {
+		// Lists are never null in JSON, also with no records.
+		c := *p
+		if c.Fields == nil {
+			c.Fields = []model.FieldProfile{}
+		}
+		if c.Rules == nil {
+			c.Rules = []model.Rule{}
+		}
+		r.Profile = &c
+	}
 	for _, d := range s.Determinants {
 		r.Determinants = append(r.Determinants, Determinant{d.Target, d.Given, round(d.Bits), round(d.RFI), d.EMIApprox})
 	}
@@ -89,12 +108,17 @@ func addChanges(r *Report, s *model.Snapshot) {
 		out := Broken{Target: b.Target, Given: b.Given, BaselineBits: round(b.BaselineBits),
 			NowBits: round(b.NowBits), Violations: b.Violations, Examples: []BreakCase{}}
 		for _, e := range b.Examples {
-			out.Examples = append(out.Examples, BreakCase{e.GivenValue, e.TargetValue, e.TargetAbsent, e.Expected, e.Count})
+			out.Examples = append(out.Examples, BreakCase{GivenValue: e.GivenValue, TargetValue: e.TargetValue,
+				TargetAbsent: e.TargetAbsent, Expected: e.Expected, Count: e.Count})
 		}
 		r.Broken = append(r.Broken, out)
 	}
 	for _, sr := range c.Surprising {
-		out := Surprising{Line: sr.Line, Bits: round(sr.Bits), Record: sr.Record, Because: []string{}, Contributions: []Contribution{}}
+		out := Surprising{Line: sr.Line, Time: r.logTime(sr.Time), Bits: round(sr.Bits), Record: sr.Record,
+			Because: []string{}, Contributions: []Contribution{}}
+		if len(sr.IDs) > 0 {
+			out.IDs = sr.IDs
+		}
 		for _, ct := range sr.Because {
 			out.Because = append(out.Because, ct.Field)
 			out.Contributions = append(out.Contributions, Contribution{ct.Field, round(ct.Bits), round(ct.Excess), ct.Broke})

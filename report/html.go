@@ -16,10 +16,17 @@ import (
 // plan chosen from the model alone when r was built. Every string from the
 // log is HTML-escaped by html/template.
 func WriteHTML(w io.Writer, r *Report, p *plan.Plan) error {
+	given := p != nil
 	if p == nil && r.snap != nil {
 		p = plan.Choose(r.snap, plan.Options{})
 	}
-	return htmlPage.Execute(w, htmlData(r, p))
+	v := htmlData(r, p)
+	if !given {
+		// The page is a report that carries a plan, not a plan.
+		v.Title = "bitsift report"
+	}
+	v.Changes = htmlChangesOf(r)
+	return htmlPage.Execute(w, v)
 }
 
 type htmlView struct {
@@ -30,6 +37,7 @@ type htmlView struct {
 	Heat    *heatMap
 	Plan    *htmlPlan
 	Caution string
+	Changes htmlChanges
 }
 
 type htmlField struct {
@@ -49,7 +57,10 @@ type htmlPlan struct {
 type htmlPlanField struct {
 	Name, Action, From, Reason                 string
 	Bits, Huffman, Lost, BytesPerRecord, Value string
-	Table, Mismatches                          int
+	Table                                      int
+	// Mismatches is "not measured" for a plan chosen from the figures
+	// alone: 0 would read as verified.
+	Mismatches string
 }
 
 func htmlData(r *Report, p *plan.Plan) *htmlView {
@@ -61,9 +72,7 @@ func htmlData(r *Report, p *plan.Plan) *htmlView {
 		if f.Estimate {
 			hf.Dist = "~" + hf.Dist
 		}
-		if f.BestGiven != "" {
-			hf.Left = fmt.Sprintf("%.3f", f.Residual)
-		}
+		hf.Left = left(f.Residual, "%.3f")
 		v.Fields = append(v.Fields, hf)
 	}
 	v.Heat = buildHeat(r)
@@ -84,7 +93,10 @@ func htmlData(r *Report, p *plan.Plan) *htmlView {
 			pf := htmlPlanField{Name: sanitize.String(f.Name), Action: string(f.Action), Reason: sanitize.String(f.Reason),
 				Bits: fmt.Sprintf("%.3f", f.Entropy), Huffman: fmt.Sprintf("%.3f", f.Huffman),
 				Lost: fmt.Sprintf("%.3f", f.BitsLost), BytesPerRecord: fmt.Sprintf("%.1f", f.BytesPerRecord),
-				Table: f.TableEntries, Mismatches: f.Mismatches, Value: sanitize.String(f.Value)}
+				Table: f.TableEntries, Mismatches: "not measured", Value: sanitize.String(f.Value)}
+			if p.Measured != nil {
+				pf.Mismatches = fmt.Sprint(f.Mismatches)
+			}
 			for i, s := range f.From {
 				if i > 0 {
 					pf.From += ", "
@@ -216,7 +228,43 @@ svg text { font: 11px system-ui, sans-serif; fill: #1c2326; }
 <p class="meta">Row field given column field: the share H(row|column)/H(row) of the row's bits the column leaves. Dark: the column determines the row; white: it tells nothing. Identifiers and constants are left out; hover a cell for the figures.</p>
 {{else}}<p>Too few measured pairs for a heat map.</p>{{end}}
 </section>
-{{with .Plan}}<section id="plan">
+{{with .Changes}}{{if .Timeline}}<section id="timeline">
+<h2>Timeline: what changed along the log, and when</h2>
+<p class="meta">{{.Method}}</p>
+{{if .Timeline.Rows}}<table id="timeline-table">
+<thead><tr><th>kind</th><th>field</th><th>given</th><th>file</th><th>first line</th><th>first time</th><th>last line</th><th>last time</th><th>records</th></tr></thead>
+<tbody>
+{{range .Timeline.Rows}}<tr><td>{{.Kind}}</td><td>{{.Field}}</td><td>{{.Given}}</td><td>{{.File}}</td><td class="n">{{.FirstLine}}</td><td>{{.FirstTime}}</td><td class="n">{{.LastLine}}</td><td>{{.LastTime}}</td><td class="n">{{.Count}}</td></tr>
+{{end}}</tbody>
+</table>{{else}}<p>No rule broke and no field shifted, went or came.</p>{{end}}
+</section>
+{{end}}{{if .Baseline}}<section id="changes">
+<h2>What changed against the baseline</h2>
+<p class="meta">Baseline: {{.Baseline}}.</p>
+{{if .Shifts}}<table id="shift-table">
+<thead><tr><th>shifted field</th><th>JSD bits</th><th>ΔH bits</th><th>z</th></tr></thead>
+<tbody>
+{{range .Shifts}}<tr><td>{{.Name}}</td><td class="n">{{.JSD}}</td><td class="n">{{.DH}}</td><td class="n">{{.Z}}</td></tr>
+{{end}}</tbody>
+</table>{{else}}<p>No field's distribution shifted.</p>{{end}}
+{{if .Broken}}<table id="broken-table">
+<thead><tr><th>broken rule</th><th>bits then → now</th><th>records breaking it</th><th>given value</th><th>new value</th><th>was</th><th>count</th><th>newest at</th></tr></thead>
+<tbody>
+{{range .Broken}}<tr><td>{{.Rule}}</td><td class="n">{{.Bits}}</td><td class="n">{{.Violations}}</td><td>{{.Given}}</td><td>{{.New}}</td><td>{{.Was}}</td><td class="n">{{.Count}}</td><td>{{.Where}}</td></tr>
+{{end}}</tbody>
+</table>{{else}}<p>No rule of the baseline broke.</p>{{end}}
+</section>
+{{end}}{{if .Surprising}}<section id="surprising">
+<h2>Most surprising records</h2>
+<p class="meta">Bits of surprisal against {{.Against}}.</p>
+<table id="surprising-table">
+<thead><tr><th>file</th><th>line</th><th>time</th><th>bits</th><th>because</th><th>record</th></tr></thead>
+<tbody>
+{{range .Surprising}}<tr><td>{{.File}}</td><td class="n">{{.Line}}</td><td>{{.Time}}</td><td class="n">{{.Bits}}</td><td>{{.Because}}</td><td>{{.Record}}</td></tr>
+{{end}}</tbody>
+</table>
+</section>
+{{end}}{{end}}{{with .Plan}}<section id="plan">
 <h2>Drop plan</h2>
 <p class="caution">{{$.Caution}}</p>
 <p>{{if .P.Lossless}}Lossless plan{{else}}Lossy plan: at most {{printf "%.3g" .P.BitsLost}} bits lost per record{{end}} (max loss {{.P.MaxLoss}} bits per record).

@@ -48,10 +48,13 @@ func WriteCSV(w io.Writer, r *Report) error {
 	for _, f := range r.Fields {
 		cw.Write([]string{f.Name, f.Kind, strconv.Itoa(f.Present), strconv.Itoa(f.Distinct),
 			num(f.Entropy), num(f.EntropyMM), strconv.FormatBool(f.Estimate), num(f.BytesPerRecord),
-			f.BestGiven, num(f.Residual), num(f.Uncertainty), strconv.FormatBool(f.Synthetic), strconv.FormatBool(f.Timestamp)})
+			f.BestGiven, left(f.Residual, "%g"), num(f.Uncertainty), strconv.FormatBool(f.Synthetic), strconv.FormatBool(f.Timestamp)})
 	}
 	cw.Flush()
-	return cw.Error()
+	if err := cw.Error(); err != nil {
+		return err
+	}
+	return writeChangesCSV(w, r)
 }
 
 func num(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
@@ -72,7 +75,7 @@ func (r *Report) Dependencies(limit int) []Dependency {
 		if f.BestGiven == "" || f.Kind == "constant" || f.Uncertainty < 0.5 {
 			continue
 		}
-		out = append(out, Dependency{f.Name, f.BestGiven, f.Residual, f.Uncertainty, f.Kind == "derived"})
+		out = append(out, Dependency{f.Name, f.BestGiven, *f.Residual, f.Uncertainty, f.Kind == "derived"})
 	}
 	sort.SliceStable(out, func(i, j int) bool {
 		if out[i].U != out[j].U {
@@ -94,7 +97,10 @@ func WriteText(w io.Writer, r *Report) error {
 	if r.Input.Format != "" {
 		fmt.Fprintf(b, ", format %s (%.0f%% sure)", r.Input.Format, 100*r.Input.Confidence)
 	}
-	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected", r.Lines, r.Lines-r.Rejected-r.Parts, r.Rejected)
+	fmt.Fprintf(b, "\n%d lines read: %d records, %d rejected", r.Lines, r.Lines-r.Rejected-r.Parts-r.Filtered, r.Rejected)
+	if r.Filtered > 0 || r.Narrowed != nil {
+		fmt.Fprintf(b, ", %d left out by %s", r.Filtered, r.Narrowed.String())
+	}
 	if r.Parts > 0 {
 		fmt.Fprintf(b, ", %d joined to the line after them", r.Parts)
 	}
@@ -109,7 +115,7 @@ func WriteText(w io.Writer, r *Report) error {
 		}
 		best, left := "-", ""
 		if f.BestGiven != "" {
-			best, left = f.BestGiven, fmt.Sprintf("%.3f", f.Residual)
+			best, left = f.BestGiven, fmt.Sprintf("%.3f", *f.Residual)
 		}
 		kind := f.Kind
 		if f.Timestamp {
@@ -161,8 +167,10 @@ func WriteText(w io.Writer, r *Report) error {
 	for _, f := range r.Input.Faults {
 		fmt.Fprintf(b, "\nfault: %s\n", sanitize.String(f))
 	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	return writeGroups(w, r, false)
 }
 
 // writeSynthetic lists the fields bitsift made, so that no one takes them
@@ -229,14 +237,17 @@ func WriteMarkdown(w io.Writer, r *Report) error {
 		if f.Timestamp {
 			kind = "timestamp"
 		}
-		fmt.Fprintf(b, "| %s | %s | %.3f | %d | %s | %.3f | %.1f |\n",
-			name, kind, f.Entropy, f.Distinct, md(f.BestGiven), f.Residual, f.BytesPerRecord)
+		fmt.Fprintf(b, "| %s | %s | %.3f | %d | %s | %s | %.1f |\n",
+			name, kind, f.Entropy, f.Distinct, md(f.BestGiven), left(f.Residual, "%.3f"), f.BytesPerRecord)
 	}
 	if synth {
 		b.WriteString("\n† derived by bitsift from another field, not in the log.\n")
 	}
-	_, err := io.WriteString(w, b.String())
-	return err
+	writeChangesMarkdown(b, r)
+	if _, err := io.WriteString(w, b.String()); err != nil {
+		return err
+	}
+	return writeGroups(w, r, true)
 }
 
 func md(s string) string {

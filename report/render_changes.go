@@ -46,6 +46,7 @@ func writeChanges(b *strings.Builder, r *Report) {
 		writeShifts(b, r)
 		writeBroken(b, r)
 	}
+	writeTimeline(b, r)
 	writeSurprising(b, r)
 }
 

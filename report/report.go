@@ -4,6 +4,7 @@
 package report
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"time"
@@ -23,7 +24,12 @@ type Report struct {
 	Lines    int64  `json:"lines"`
 	// Parts counts lines joined into a record with the lines after them
 	// (CRI partial lines): lines = records read + rejected + parts.
-	Parts            int64             `json:"parts,omitempty"`
+	Parts int64 `json:"parts,omitempty"`
+	// Filtered counts records left out by --where, --since and --until
+	// (lines = records read + rejected + parts + filtered); Narrowed says
+	// how the stream was narrowed.
+	Filtered         int64             `json:"filtered,omitempty"`
+	Narrowed         *Narrow           `json:"narrowed,omitempty"`
 	RejectedExamples []model.Rejection `json:"rejected_examples"`
 	Window           Window            `json:"window"`
 	Input            Input             `json:"input"`
@@ -50,6 +56,15 @@ type Report struct {
 	// determinants and surprising records cover (see
 	// model.DeepMaxRecords); absent when they were not computed.
 	DeepRecords int `json:"deep_records,omitempty"`
+	// Timeline lists what changed along log time (see TimelineEntry);
+	// TimelineMethod says how it was found. Absent when not computed.
+	Timeline       []TimelineEntry `json:"timeline"`
+	TimelineMethod string          `json:"timeline_method,omitempty"`
+	// By is the field of --by; Groups the report of each of its most
+	// frequent values, GroupsLeftOut how many values had none.
+	By            string  `json:"by,omitempty"`
+	Groups        []Group `json:"groups,omitempty"`
+	GroupsLeftOut int     `json:"groups_left_out,omitempty"`
 	// Profile is this window's profile: give this report to --baseline
 	// of a later run to compare with it.
 	Profile *model.Profile `json:"profile,omitempty"`
@@ -98,8 +113,11 @@ type Field struct {
 	Estimate       bool    `json:"estimate"`
 	BytesPerRecord float64 `json:"bytes_per_record"`
 	BestGiven      string  `json:"best_given"`
-	Residual       float64 `json:"residual_bits"`
-	Uncertainty    float64 `json:"uncertainty_coefficient"`
+	// Residual is H(F|best_given), null when the field has no best
+	// predictor (not 0: a script looking for zero residuals would find
+	// the identifiers).
+	Residual    *float64 `json:"residual_bits"`
+	Uncertainty float64  `json:"uncertainty_coefficient"`
 	// Synthetic is set for a companion field that bitsift made from
 	// another (FIELD~log, FIELD~template): it is not in the log.
 	Synthetic bool `json:"synthetic"`
@@ -135,6 +153,7 @@ func Build(s *model.Snapshot) *Report {
 		Rejected:         s.Input.Rejected,
 		Lines:            s.Input.Lines,
 		Parts:            s.Input.Parts,
+		Filtered:         s.Input.Filtered,
 		RejectedExamples: s.Input.RejectedExamples,
 		Input: Input{
 			Sources:    s.Input.Sources,
@@ -147,6 +166,7 @@ func Build(s *model.Snapshot) *Report {
 		LeftOutFields: s.LeftOutFields,
 	}
 	r.Events = []Event{}
+	r.Fields = []Field{} // never null in JSON, also with no records
 	for _, e := range s.Input.Events {
 		r.Events = append(r.Events, Event{Time: e.Time.UTC().Format(time.RFC3339Nano), Kind: e.Kind, Detail: e.Detail})
 	}
@@ -170,7 +190,7 @@ func Build(s *model.Snapshot) *Report {
 			Name: f.Name, Kind: string(f.Kind), Present: f.Present, Distinct: f.Distinct,
 			Entropy: round(f.Entropy), EntropyMM: round(f.EntropyMM), Estimate: f.Estimate,
 			BytesPerRecord: round(f.BytesPerRecord), BestGiven: f.BestGiven,
-			Residual: round(f.Residual), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
+			Residual: residualOf(f), Uncertainty: round(f.Uncertainty), Timestamp: f.Timestamp,
 			RFI: round(f.RFI), EMIApprox: f.EMIApprox, Shift: shiftOf(f.Shift),
 		}
 		if f.Synthetic != nil {
@@ -211,4 +231,21 @@ func round(x float64) float64 {
 		return 0
 	}
 	return math.Round(x*1e9) / 1e9
+}
+
+// residualOf is the field's H(F|G) for its best predictor, nil without one.
+func residualOf(f *model.FieldStats) *float64 {
+	if f.BestGiven == "" {
+		return nil
+	}
+	x := round(f.Residual)
+	return &x
+}
+
+// left is a residual as text: "" when there is none.
+func left(x *float64, format string) string {
+	if x == nil {
+		return ""
+	}
+	return fmt.Sprintf(format, *x)
 }

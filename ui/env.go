@@ -8,6 +8,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"bitsift/ingest"
+	"bitsift/model"
 )
 
 // env is what every view shares: styles, keys, and the frame on show.
@@ -19,9 +20,14 @@ type env struct {
 	// nil until one came.
 	deep *ingest.Frame
 	hist *history
-	now  func() time.Time
+	// timeline keeps what changed, frame after frame, after it left
+	// the window.
+	timeline *model.TimelineBook
+	now      func() time.Time
 	// pinnedAt is when the user last pinned a baseline (zero: never).
 	pinnedAt time.Time
+	// baselineChecked: --baseline has been checked against the stream.
+	baselineChecked bool
 }
 
 // openMsg asks the root to show one field up close, given another field

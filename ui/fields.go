@@ -81,8 +81,14 @@ func (v fieldsView) setSize(w, h int) fieldsView {
 	rest := free - l.bar - l.trend
 	l.name = max(8, min(32, rest*11/20))
 	l.best = max(6, min(28, rest-l.name))
-	// Give what is left over to the trend, up to two minutes of samples.
-	l.trend = min(historyLen, l.trend+max(0, free-l.bar-l.trend-l.name-l.best))
+	// Give what is left over to the names (long ones are common), then to
+	// the trend, which fills one cell a second: a wide one stays empty.
+	more := max(0, free-l.bar-l.trend-l.name-l.best)
+	grow := min(more, 48-l.name)
+	l.name, more = l.name+max(0, grow), more-max(0, grow)
+	grow = min(more, 40-l.best)
+	l.best, more = l.best+max(0, grow), more-max(0, grow)
+	l.trend = min(60, l.trend+more)
 	v.lay = l
 	return v.clamp()
 }
@@ -381,7 +387,7 @@ func (v fieldsView) footer() string {
 		}
 	}
 	if f := v.env.frame; f != nil && f.Snap.Changes != nil && (len(f.Snap.Changes.Broken) > 0 || len(f.Snap.Changes.Shifts) > 0) {
-		parts = append(parts, "✗ rule broken · Δ shifted (4)")
+		parts = append(parts, "✗ rule broken · Δ shifted: see screen 4")
 	}
 	if q := v.filter.Value(); q != "" {
 		parts = append(parts, "filter “"+sanitize.Fit(q, 20)+"” (esc clears)")

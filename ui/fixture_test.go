@@ -43,7 +43,7 @@ var fixture = sync.OnceValue(func() fixtureData {
 	event := parse.SourceEvent{
 		Time: time.Date(2026, 3, 14, 6, 0, 41, 0, time.UTC), Kind: "rotated", Detail: "quayside.log → quayside.log.1",
 	}
-	smp := plan.NewSample(4000)
+	smp := plan.NewSample(6000) // past plan.MinReductionRecords, so record classes show
 	for n := int64(1); n <= 96_000; n++ {
 		if n == 60_001 {
 			in.PinBaseline()

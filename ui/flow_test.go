@@ -37,7 +37,7 @@ func TestFlow(t *testing.T) {
 	}
 	wait("refund_reason")
 	key("tab")
-	wait("cell: H(row|col)/H(row)")
+	wait("cell: 1 − RFI(row|col)")
 	key("6")
 	wait("REJECTED")
 	key("4")

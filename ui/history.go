@@ -28,7 +28,7 @@ func newHistory(every time.Duration) *history {
 
 // add samples s if the interval has passed since the last sample.
 func (h *history) add(s *model.Snapshot, now time.Time) {
-	if h.n > 0 && now.Sub(h.last) < h.every {
+	if h.n > 0 && now.Sub(h.last) < h.every && !now.Before(h.last) {
 		return
 	}
 	h.last = now

@@ -87,6 +87,7 @@ func (v *intakeView) page(f *ingest.Frame) []string {
 	for _, fault := range in.Faults {
 		out = append(out, kv("fault", st.Bad.Render(sanitize.String(fault))))
 	}
+	out = append(out, partLines(v.env, src.Parts, w)...)
 	out = append(out, "")
 	v.rejectedAt = len(out)
 	head := "REJECTED  " + count(in.Rejected) + " of " + count(in.Lines) + " lines"

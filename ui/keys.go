@@ -17,6 +17,8 @@ type KeyMap struct {
 	PinBase, Rolling      key.Binding
 	Keep, Drop, Unpin     key.Binding
 	Rejected, Events      key.Binding
+	SaveBase, WriteScreen key.Binding
+	Shade                 key.Binding
 	Help, Quit            key.Binding
 }
 
@@ -26,39 +28,42 @@ func DefaultKeys() KeyMap {
 		return key.NewBinding(key.WithKeys(keys...), key.WithHelp(help, desc))
 	}
 	return KeyMap{
-		Up:       b("↑/k", "up", "up", "k"),
-		Down:     b("↓/j", "down", "down", "j"),
-		Left:     b("←/h", "left · prev field", "left", "h"),
-		Right:    b("→/l", "right · next field", "right", "l"),
-		PageUp:   b("pgup", "page up", "pgup", "ctrl+b"),
-		PageDown: b("pgdn", "page down", "pgdown", "ctrl+f"),
-		Top:      b("g/home", "first", "home", "g"),
-		Bottom:   b("G/end", "last", "end", "G"),
-		Next:     b("tab", "next screen", "tab"),
-		Prev:     b("shift+tab", "previous screen", "shift+tab"),
-		Fields:   b("1", "fields", "1"),
-		Pairs:    b("2", "pairs", "2"),
-		Focus:    b("3", "one field", "3"),
-		Drift:    b("4", "what changed", "4"),
-		Plan:     b("5", "drop plan", "5"),
-		Intake:   b("6", "input", "6"),
-		Open:     b("enter", "open field or cell", "enter"),
-		Back:     b("esc", "back · clear filter", "esc"),
-		Sort:     b("s", "sort by next column", "s"),
-		Reverse:  b("S", "reverse sort", "S"),
-		Filter:   b("/", "filter fields by name", "/"),
-		Window:   b("w", "change window", "w"),
-		Pause:    b("space", "pause display · replay", " "),
-		Step:     b("n", "replay: one window on", "n"),
-		PinBase:  b("b", "pin window as baseline", "b"),
-		Rolling:  b("B", "rolling baseline", "B"),
-		Keep:     b("+", "plan: keep field", "+"),
-		Drop:     b("x", "plan: drop field", "x"),
-		Unpin:    b("u", "plan: unpin field", "u"),
-		Rejected: b("r", "rejected lines", "r"),
-		Events:   b("e", "source events", "e"),
-		Help:     b("?", "keys", "?"),
-		Quit:     b("q", "quit", "q", "ctrl+c"),
+		Up:          b("↑/k", "up", "up", "k"),
+		Down:        b("↓/j", "down", "down", "j"),
+		Left:        b("←/h", "left · prev field", "left", "h"),
+		Right:       b("→/l", "right · next field", "right", "l"),
+		PageUp:      b("pgup", "page up", "pgup", "ctrl+b"),
+		PageDown:    b("pgdn", "page down", "pgdown", "ctrl+f"),
+		Top:         b("g/home", "first", "home", "g"),
+		Bottom:      b("G/end", "last", "end", "G"),
+		Next:        b("tab", "next screen", "tab"),
+		Prev:        b("shift+tab", "previous screen", "shift+tab"),
+		Fields:      b("1", "fields", "1"),
+		Pairs:       b("2", "pairs", "2"),
+		Focus:       b("3", "one field", "3"),
+		Drift:       b("4", "what changed", "4"),
+		Plan:        b("5", "drop plan", "5"),
+		Intake:      b("6", "input", "6"),
+		Open:        b("enter", "open field or cell", "enter"),
+		Back:        b("esc", "back · clear filter", "esc"),
+		Sort:        b("s", "sort by next column", "s"),
+		Reverse:     b("S", "reverse sort", "S"),
+		Filter:      b("/", "filter fields by name", "/"),
+		Window:      b("w", "change window", "w"),
+		Pause:       b("space", "pause display · replay", " "),
+		Step:        b("n", "replay: one window on", "n"),
+		PinBase:     b("b", "pin window as baseline", "b"),
+		Rolling:     b("B", "rolling baseline", "B"),
+		Keep:        b("+", "plan: keep field", "+"),
+		Drop:        b("x", "plan: drop field", "x"),
+		Unpin:       b("u", "plan: unpin field", "u"),
+		Rejected:    b("r", "rejected lines", "r"),
+		SaveBase:    b("f", "save baseline file", "f"),
+		Shade:       b("v", "pairs: RFI or raw", "v"),
+		WriteScreen: b("o", "save screen as .md, .json", "o"),
+		Events:      b("e", "source events", "e"),
+		Help:        b("?", "keys", "?"),
+		Quit:        b("q", "quit", "q", "ctrl+c"),
 	}
 }
 
@@ -73,8 +78,8 @@ func (k KeyMap) FullHelp() [][]key.Binding {
 		{k.Up, k.Down, k.Left, k.Right, k.PageUp, k.PageDown, k.Top, k.Bottom},
 		{k.Next, k.Prev, k.Fields, k.Pairs, k.Focus, k.Drift, k.Plan, k.Intake, k.Open, k.Back},
 		{k.Rejected, k.Events, k.Help, k.Quit},
-		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause, k.Step},
-		{k.PinBase, k.Rolling, k.Keep, k.Drop, k.Unpin},
+		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause, k.Step, k.Shade},
+		{k.PinBase, k.Rolling, k.SaveBase, k.WriteScreen, k.Keep, k.Drop, k.Unpin},
 	}
 }
 

@@ -5,6 +5,7 @@ import (
 	"errors"
 
 	"bitsift/ingest"
+	"bitsift/model"
 	"bitsift/parse"
 	"bitsift/plan"
 )
@@ -45,3 +46,12 @@ func (f *LiveFeed) Sample(ctx context.Context) (*plan.Sample, error) {
 
 // errNoSample is the Plan screen's word when no raw lines are kept.
 var errNoSample = errors.New("--redact keeps no raw lines to measure on")
+
+// Lines finds the records behind a finding on the owner goroutine (it
+// holds up ingest for one scan of the window's named columns).
+func (f *LiveFeed) Lines(ctx context.Context, conds []model.Cond, limit int) ([]ingest.LineBehind, int, error) {
+	var lines []ingest.LineBehind
+	total := 0
+	err := f.Visit(ctx, func() { lines, total = f.in.LinesBehind(conds, limit) })
+	return lines, total, err
+}

@@ -1,6 +1,7 @@
 package ui
 
 import (
+	"math"
 	"sort"
 	"strings"
 
@@ -37,6 +38,14 @@ type pairsView struct {
 	// moved: the user has moved the cursor; until then it stays on the
 	// first cell off the diagonal as the order settles.
 	moved bool
+	// label is the width of the row labels (letter, space, name): wider
+	// on a wide screen, so that names are not cut.
+	label int
+	// raw shades by H(row|col)/H(row); by default cells are shaded by
+	// 1 − RFI, the share of the row not reliably explained once chance
+	// agreement is taken off (a many-valued column explains a lot by
+	// chance alone: raw, H(account | latency_ms) looks predictive).
+	raw bool
 }
 
 // newPairsView starts with the cursor off the diagonal.
@@ -45,6 +54,7 @@ func newPairsView(e *env) pairsView { return pairsView{env: e, c: 1} }
 func (v pairsView) setSize(w, h int) pairsView {
 	v.w, v.h = w, h
 	v.n = max(2, min(maxPairFields, (w-2-pairLabel-2-pairPanelMin)/2, h-2-legendLines))
+	v.label = max(pairLabel, min(34, w-2-2*v.n-2-pairPanelMin-10))
 	return v.refresh()
 }
 
@@ -125,6 +135,8 @@ func (v pairsView) Update(msg tea.Msg) (pairsView, tea.Cmd) {
 		if v.selR != "" && v.selR != v.selC {
 			return v, open(v.selR, v.selC)
 		}
+	case key.Matches(km, k.Shade):
+		v.raw = !v.raw
 	}
 	return v.clamp(), nil
 }
@@ -157,7 +169,7 @@ func (v pairsView) View() string {
 	n := len(v.idx)
 	var left []string
 	var hdr strings.Builder
-	hdr.WriteString(strings.Repeat(" ", 2+pairLabel))
+	hdr.WriteString(strings.Repeat(" ", 2+v.label))
 	for j := range n {
 		l := letter(j) + " "
 		if j == v.c {
@@ -173,12 +185,11 @@ func (v pairsView) View() string {
 		if i == v.r {
 			mark = "▸ "
 		}
-		label := letter(i) + " " + sanitize.Pad(s.Fields[fi].Name, pairLabel-3) + " "
+		label := letter(i) + " " + sanitize.Pad(s.Fields[fi].Name, v.label-3) + " "
 		if i == v.r {
 			label = st.TabActive.Render(label)
 		}
 		b.WriteString(mark + label)
-		hr := s.Fields[fi].Entropy
 		for j, fj := range v.idx {
 			var cell string
 			switch {
@@ -187,7 +198,7 @@ func (v pairsView) View() string {
 			case !s.HasPair(fi, fj):
 				cell = st.Diagonal.Render("  ")
 			default:
-				lv := heat(s.Cond(fi, fj) / hr)
+				lv := heat(v.share(s, fi, fj))
 				cell = st.Heat[lv].Render(heatGlyphs[lv])
 			}
 			if i == v.r && j == v.c {
@@ -197,11 +208,11 @@ func (v pairsView) View() string {
 		}
 		left = append(left, b.String())
 	}
-	pointer := strings.Repeat(" ", 2+pairLabel+2*v.c) + "▲"
+	pointer := strings.Repeat(" ", 2+v.label+2*v.c) + "▲"
 	left = append(left, st.Muted.Render(pointer))
 	left = append(left, v.legend()...)
 	right := v.panel(s)
-	mapW := 2 + pairLabel + 2*n + 2
+	mapW := 2 + v.label + 2*n + 2
 	lines := make([]string, v.h)
 	for i := range lines {
 		l, r := "", ""
@@ -219,8 +230,12 @@ func (v pairsView) View() string {
 func (v pairsView) legend() []string {
 	st := v.env.st
 	g := func(i int) string { return st.Heat[i].Render(heatGlyphs[i]) }
+	what := "cell: 1 − RFI(row|col), v: raw"
+	if v.raw {
+		what = "cell: H(row|col)/H(row), v: RFI"
+	}
 	return []string{
-		st.Muted.Render("cell: H(row|col)/H(row)") + "",
+		st.Muted.Render(what),
 		st.Muted.Render("0: col fixes row  1: no help"),
 		g(0) + "<.05 " + g(1) + "<.25 " + g(2) + "<.5",
 		g(3) + "<.8  " + g(4) + "≥.8  " + st.Diagonal.Render("╲╲") + "self",
@@ -230,7 +245,7 @@ func (v pairsView) legend() []string {
 // panel is the figures of the cell under the cursor.
 func (v pairsView) panel(s *model.Snapshot) []string {
 	st := v.env.st
-	pw := v.w - (2 + pairLabel + 2*len(v.idx) + 2)
+	pw := v.w - (2 + v.label + 2*len(v.idx) + 2)
 	ri, ci := v.idx[v.r], v.idx[v.c]
 	rn, cn := s.Fields[ri].Name, s.Fields[ci].Name
 	out := []string{
@@ -261,7 +276,9 @@ func (v pairsView) panel(s *model.Snapshot) []string {
 	if hr > 0 {
 		share = hrc / hr
 	}
-	out = append(out, padRight("row left", 12)+padLeft(percent(share), 6)+" of H(row)", "")
+	out = append(out, padRight("row left", 12)+padLeft(percent(share), 6)+" of H(row)")
+	rfi := s.RFI(ri, ci)
+	out = append(out, padRight("RFI", 12)+padLeft(formatFloat(rfi, 3), 6)+st.Muted.Render(" reliably explained"), "")
 	bw := max(8, min(pw-1, 48))
 	a, b := 0, 0
 	if hj > 0 {
@@ -289,4 +306,21 @@ func fill(lines []string, h int) string {
 		lines = append(lines, "")
 	}
 	return strings.Join(lines[:h], "\n")
+}
+
+// share is what a cell shades: by default 1 − RFI(row|col) clipped to
+// [0, 1] (chance-corrected), with raw H(row|col)/H(row).
+func (v pairsView) share(s *model.Snapshot, i, j int) float64 {
+	hr := s.Fields[i].Entropy
+	if hr <= 0 {
+		return 0
+	}
+	if v.raw {
+		return s.Cond(i, j) / hr
+	}
+	r := s.RFI(i, j)
+	if math.IsNaN(r) {
+		return 1
+	}
+	return max(0, min(1, 1-r))
 }

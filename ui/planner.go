@@ -27,12 +27,15 @@ type plannerView struct {
 	// another goroutine keeps the copy it was given.
 	pins map[string]plan.Pin
 	ver  int
+	// recPins are the user's choices for record classes, by class, kept
+	// the same way.
+	recPins map[string]plan.Pin
 
 	cur    *plan.Plan // chosen from the frame on show
 	rows   []int      // indices into cur.Fields, in display order
 	cursor int
 	offset int
-	sel    string // the field under the cursor, kept across frames
+	sel    string // the field (or recSel+class) under the cursor, kept across frames
 
 	meas      *plan.Plan // the last measured plan, nil before one
 	measVer   int        // the pins it was made for
@@ -41,15 +44,43 @@ type plannerView struct {
 	measuring bool
 }
 
-func newPlannerView(e *env) plannerView { return plannerView{env: e, pins: map[string]plan.Pin{}} }
+func newPlannerView(e *env) plannerView {
+	return plannerView{env: e, pins: map[string]plan.Pin{}, recPins: map[string]plan.Pin{}}
+}
+
+// recSel marks a record class in sel: no field name starts with NUL.
+const recSel = "\x00rec:"
+
+// reds are the record classes of the last measurement, shown after the
+// fields.
+func (v plannerView) reds() []plan.Reduction {
+	if v.meas == nil {
+		return nil
+	}
+	return v.meas.Reductions
+}
+
+// entries is the length of the list: fields, then record classes.
+func (v plannerView) entries() int { return len(v.rows) + len(v.reds()) }
 
 func (v plannerView) setSize(w, h int) plannerView {
 	v.w, v.h = w, h
 	return v.clamp()
 }
 
-// caution is the caution wrapped to the width.
-func (v plannerView) caution() []string { return wrapWords(plan.Caution, v.w-2) }
+// samplingCaution is the screen's line on record sampling.
+const samplingCaution = "Sampling deletes whole records, gone for audits and investigations: " +
+	"defer to your retention policy."
+
+// caution is the caution wrapped to the width, and the line on sampling
+// when record classes are on show.
+func (v plannerView) caution() []string {
+	c := wrapWords(plan.Caution, v.w-2)
+	if len(v.reds()) > 0 {
+		c = append(c, wrapWords(samplingCaution, v.w-2)...)
+	}
+	return c
+}
 
 // plannerHead is the lines above the rows: three of totals, one of
 // columns.
@@ -60,7 +91,7 @@ func (v plannerView) listHeight() int { return max(1, v.h-plannerHead-2-len(v.ca
 
 // options are the plan options for the pins.
 func (v plannerView) options() plan.Options {
-	o := plan.Options{Pins: maps.Clone(v.pins)}
+	o := plan.Options{Pins: maps.Clone(v.pins), RecordPins: maps.Clone(v.recPins)}
 	if f := v.env.frame; f != nil {
 		o.RecordTimes = f.Snap.Input.TimeField != ""
 	}
@@ -90,19 +121,32 @@ func (v plannerView) refresh() plannerView {
 		}
 		return fa.Name < fb.Name
 	})
+	return v.reselect()
+}
+
+// reselect puts the cursor back on the entry it was on.
+func (v plannerView) reselect() plannerView {
 	v.cursor = 0
 	for i, r := range v.rows {
-		if fs[r].Name == v.sel {
+		if v.cur.Fields[r].Name == v.sel {
 			v.cursor = i
+		}
+	}
+	for i, r := range v.reds() {
+		if recSel+r.Class == v.sel {
+			v.cursor = len(v.rows) + i
 		}
 	}
 	return v.clamp()
 }
 
 func (v plannerView) clamp() plannerView {
-	v.cursor, v.offset = keepInView(v.cursor, v.offset, len(v.rows), v.listHeight())
-	if v.cur != nil && v.cursor < len(v.rows) {
+	v.cursor, v.offset = keepInView(v.cursor, v.offset, v.entries(), v.listHeight())
+	switch {
+	case v.cur != nil && v.cursor < len(v.rows):
 		v.sel = v.cur.Fields[v.rows[v.cursor]].Name
+	case v.cursor >= len(v.rows) && v.cursor < v.entries():
+		v.sel = recSel + v.reds()[v.cursor-len(v.rows)].Class
 	}
 	return v
 }
@@ -128,11 +172,30 @@ func (v plannerView) measured(ver int, p *plan.Plan, err error) plannerView {
 	if err == nil {
 		v.meas = p
 	}
-	return v
+	if v.cur == nil {
+		return v
+	}
+	return v.reselect()
 }
 
-// pin sets the pin of the field under the cursor and chooses again.
+// pin sets the pin of the field under the cursor and chooses again; on a
+// record class, + keeps the class whole and x reduces it even with
+// findings, measured again in the background.
 func (v plannerView) pin(p plan.Pin) plannerView {
+	if class, ok := strings.CutPrefix(v.sel, recSel); ok {
+		if v.recPins[class] == p {
+			return v
+		}
+		pins := maps.Clone(v.recPins)
+		if p == plan.Unpinned {
+			delete(pins, class)
+		} else {
+			pins[class] = p
+		}
+		v.recPins = pins
+		v.ver++
+		return v
+	}
 	if v.sel == "" || v.pins[v.sel] == p {
 		return v
 	}
@@ -151,7 +214,7 @@ func (v plannerView) pin(p plan.Pin) plannerView {
 func (v plannerView) Update(msg tea.Msg) (plannerView, tea.Cmd) {
 	k := v.env.keys
 	if s, ok := scrollOf(k, msg, v.listHeight()); ok {
-		v.cursor = s.apply(v.cursor, len(v.rows))
+		v.cursor = s.apply(v.cursor, v.entries())
 		return v.clamp(), nil
 	}
 	km, ok := msg.(tea.KeyMsg)
@@ -166,7 +229,7 @@ func (v plannerView) Update(msg tea.Msg) (plannerView, tea.Cmd) {
 	case key.Matches(km, k.Unpin):
 		return v.pin(plan.Unpinned), nil
 	case key.Matches(km, k.Open):
-		if v.sel != "" {
+		if v.sel != "" && !strings.HasPrefix(v.sel, recSel) {
 			return v, open(v.sel, "")
 		}
 	}
@@ -198,9 +261,14 @@ func (v plannerView) View() string {
 		head += "  " + padRight("WHY", c.why)
 	}
 	lines = append(lines, st.Header.Render(padRight(head, v.w)))
-	end := min(len(v.rows), v.offset+v.listHeight())
+	end := min(v.entries(), v.offset+v.listHeight())
+	reds := v.reds()
 	for i := v.offset; i < end; i++ {
-		lines = append(lines, v.row(&v.cur.Fields[v.rows[i]], i == v.cursor, c))
+		if i < len(v.rows) {
+			lines = append(lines, v.row(&v.cur.Fields[v.rows[i]], i == v.cursor, c))
+		} else {
+			lines = append(lines, v.recRow(&reds[i-len(v.rows)], i == v.cursor, c))
+		}
 	}
 	if len(v.rows) == 0 {
 		lines = append(lines, st.Muted.Render("  no fields of the log to plan for"))
@@ -268,8 +336,11 @@ func (v plannerView) measuredText() string {
 	if m.Measured.Mismatches > 0 {
 		t += st.Bad.Render(" · " + count(int64(m.Measured.Mismatches)) + " mismatches")
 	}
-	if v.measVer != v.ver || v.measuring {
+	switch {
+	case v.measVer != v.ver:
 		t = st.Muted.Render(t + " · before the last pin, measuring again…")
+	case v.measuring:
+		t = st.Muted.Render(t + " · measuring again…")
 	}
 	return t
 }
@@ -315,9 +386,58 @@ func (v plannerView) row(f *plan.Field, cur bool, c planCols) string {
 	return line
 }
 
+// recRow draws a record class: its action and rate in ACTION and FROM,
+// its share of records under H, the bits it loses per record under LOST,
+// the bytes it saves per record (raw) under B/rec, and its findings.
+func (v plannerView) recRow(r *plan.Reduction, cur bool, c planCols) string {
+	st := v.env.st
+	mark := "  "
+	if cur {
+		mark = "▸ "
+	}
+	pin := r.Pin
+	if p, ok := v.recPins[r.Class]; ok || v.measVer != v.ver {
+		pin = p
+	}
+	pinText := map[plan.Pin]string{plan.Unpinned: "·", plan.PinKeep: "keep", plan.PinDrop: "cut"}[pin]
+	action := string(r.Action)
+	style := st.Bad
+	why := "routine: " + formatFloat(r.Ratio, 2) + "× the stream's bits/byte"
+	if r.Action == plan.CollapseRecords {
+		why = "repeats within a minute"
+	}
+	applied := pin == plan.PinDrop || pin == plan.Unpinned && r.Findings == 0
+	if r.Action == plan.CollapseRecords {
+		action = "dedup"
+	}
+	if !applied {
+		style, action = st.Muted, "kept"
+	}
+	if r.Findings > 0 {
+		why = "⚠ " + count(int64(r.Findings)) + " findings: " + strings.Join(r.FindingExamples, "; ")
+	}
+	line := mark + sanitize.Pad("rec "+r.Class, c.name) + " " + padRight(pinText, 4) + " " + style.Render(padRight(action, 6)) + " " +
+		padRight("1/"+formatFloat(r.KeepOneIn, 0), c.from) + " " + padLeft(percent(r.ShareRecords), 6) + " " +
+		padLeft(bits(r.BitsLostPerRecord), 6) + " " + padLeft(formatFloat(r.Saved.Raw, 1), 6)
+	if c.why > 0 {
+		ws := st.Muted
+		if r.Findings > 0 {
+			ws = st.Warn
+		}
+		line += "  " + ws.Render(sanitize.Fit(why, c.why))
+	}
+	if cur {
+		return st.Cursor.Render(padRight(ansiStrip(line), v.w))
+	}
+	return line
+}
+
 func (v plannerView) footer() string {
 	parts := []string{"+ keep · x drop · u unpin the field under the cursor", "LOST: H(F|FROM) bits/record"}
-	if n := len(v.pins); n > 0 {
+	if len(v.reds()) > 0 {
+		parts = append(parts, "rec: a class of records to sample or dedup (H: its share, B/rec: saved)")
+	}
+	if n := len(v.pins) + len(v.recPins); n > 0 {
 		parts = append(parts, count(int64(n))+" pinned")
 	}
 	return v.env.st.Muted.Render(joinFit(parts, " · ", v.w))

@@ -44,6 +44,10 @@ type Model struct {
 	drift        driftView
 	planner      plannerView
 	intake       intakeView
+	// lines shows the lines behind a finding over the screen, while
+	// showLines (esc closes it).
+	lines     linesView
+	showLines bool
 
 	w, h     int
 	gen      int // generation of the frame loop; a message of another is dropped
@@ -91,7 +95,8 @@ type measuredMsg struct {
 // New returns the screen over feed.
 func New(feed Feed, opt Options) Model {
 	opt = opt.withDefaults()
-	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery), now: opt.Clock}
+	e := &env{st: NewStyles(opt.Renderer), keys: DefaultKeys(), hist: newHistory(opt.HistoryEvery), now: opt.Clock,
+		timeline: &model.TimelineBook{}}
 	h := help.New()
 	h.Styles.FullKey = e.st.HelpKey
 	h.Styles.FullDesc = e.st.HelpDesc
@@ -162,6 +167,16 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		return m.onFrame(msg)
 	case measuredMsg:
 		m.planner = m.planner.measured(msg.ver, msg.plan, msg.err)
+		return m, nil
+	case openLinesMsg:
+		m.lines = newLinesView(m.e, msg.title, msg.conds, m.w, max(1, m.h-topLines-statusLines))
+		m.showLines, m.showHelp = true, false
+		return m, fetchLines(m.opt.Context, m.feed, msg.conds)
+	case savedMsg:
+		m.say(msg.text)
+		return m, nil
+	case linesMsg:
+		m.lines = m.lines.answer(msg)
 		return m, nil
 	case openMsg:
 		m.focus = m.focus.show(msg.field, msg.given)
@@ -240,7 +255,16 @@ func (m Model) apply(f *ingest.Frame) Model {
 	if f.Deep {
 		m.e.deep = f
 	}
-	m.e.hist.add(f.Snap, time.Now())
+	// Replays sample the history in log time, so a sparkline spans
+	// the records' own minutes whatever the speed; live sources on the
+	// injected clock.
+	at := m.e.now()
+	if m.feed.Pacer() != nil && f.Snap.Newest != 0 {
+		at = time.Unix(0, f.Snap.Newest)
+	}
+	m.e.hist.add(f.Snap, at)
+	m.e.timeline.Note(f.Snap, model.Trace{File: f.Source.Name, Line: f.Source.Lines, Time: f.Snap.Newest})
+	m = m.checkBaseline(f)
 	if m.pendingWindow != nil && f.Snap.Window == *m.pendingWindow {
 		m.pendingWindow = nil
 	}
@@ -263,6 +287,15 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	}
 	m.flash = ""
 	before := m.screen
+	if m.showLines && !key.Matches(msg, k.Quit) && !key.Matches(msg, k.Help) {
+		if key.Matches(msg, k.Back) {
+			m.showLines = false
+			return m, nil
+		}
+		var cmd tea.Cmd
+		m.lines, cmd = m.lines.Update(msg)
+		return m, cmd
+	}
 	switch {
 	case key.Matches(msg, k.Quit):
 		return m, tea.Quit
@@ -312,6 +345,11 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		return m.fetchDeep(true)
 	case key.Matches(msg, k.Window):
 		return m.nextWindow()
+	case key.Matches(msg, k.SaveBase):
+		return m, m.saveBaseline()
+	case key.Matches(msg, k.WriteScreen):
+		m.say(m.writeScreen())
+		return m, nil
 	case key.Matches(msg, k.Back) && m.screen == screenFocus:
 		m = m.show(m.back)
 	default:
@@ -367,20 +405,21 @@ func (m Model) step() (tea.Model, tea.Cmd) {
 	}
 	n := stepRecords(m.e.frame)
 	p.Step(n)
-	m.say("replay: " + count(int64(n)) + " records on, then paused (space resumes)")
+	m.say("replay: " + count(int64(n)) + " lines on, then paused (space resumes)")
 	return m, m.fetch(true)
 }
 
-// stepRecords is one window of records: the window's length for a record
-// window, else as many records as the window holds now (at least 1,000).
+// stepRecords is one window of lines: the window's length for a record
+// window, else a steady 1,000 (a window "all" or of a duration has no
+// length in records, and a step that grew with the window would read as
+// uneven).
 func stepRecords(f *ingest.Frame) int {
-	if f == nil {
-		return 1000
+	if f != nil {
+		if w := f.Snap.Window; w.Kind == model.WindowRecords {
+			return w.Records
+		}
 	}
-	if w := f.Snap.Window; w.Kind == model.WindowRecords {
-		return w.Records
-	}
-	return max(1000, f.Snap.Records)
+	return 1000
 }
 
 // show switches screens, closing the help page.
@@ -456,6 +495,7 @@ func (m Model) resize(w, h int) Model {
 	m.drift = m.drift.setSize(w, ch)
 	m.planner = m.planner.setSize(w, ch)
 	m.intake = m.intake.setSize(w, ch)
+	m.lines = m.lines.setSize(w, ch)
 	return m
 }
 
@@ -470,6 +510,8 @@ func (m Model) View() string {
 	switch {
 	case m.showHelp:
 		body = m.helpPage(ch)
+	case m.showLines:
+		body = m.lines.View()
 	case m.screen == screenFields:
 		body = m.fields.View()
 	case m.screen == screenPairs:

@@ -68,7 +68,7 @@ func (m Model) statusLines() [2]string {
 	}
 	first = append(first,
 		sanitize.Fit(f.Source.Name, max(12, m.w/4)),
-		rate(f.RecordsPerSec)+" rec/s",
+		rateText(m, f),
 		fillText(f.Snap),
 	)
 	if m.pendingWindow != nil {
@@ -90,12 +90,12 @@ func (m Model) statusLines() [2]string {
 	}
 	hint := st.Muted.Render("? keys · q quit ")
 	if m.flash != "" && m.e.now().Sub(m.flashAt) < flashFor {
-		// After the counts and the progress, which stay in sight, in
-		// the room they leave.
-		used := sanitize.Width(ansiStrip(joinFit(second[:4], " · ", m.w)))
+		// After the counts, which stay in sight, in the room they leave.
+		// Before the progress, which a narrow screen cuts first.
+		used := sanitize.Width(ansiStrip(joinFit(second[:3], " · ", m.w)))
 		if room := m.w - sanitize.Width(ansiStrip(hint)) - used - 4; room >= 12 {
 			flash := st.Warn.Render(sanitize.Fit(m.flash, room))
-			second = append(second[:4], append([]string{flash}, second[4:]...)...)
+			second = append(second[:3], append([]string{flash}, second[3:]...)...)
 		}
 	}
 	left := joinFit(second, st.Muted.Render(" · "), m.w-sanitize.Width(ansiStrip(hint))-1)
@@ -103,4 +103,16 @@ func (m Model) statusLines() [2]string {
 		joinFit(first, st.Muted.Render(" · "), m.w),
 		padRight(left, m.w-sanitize.Width(ansiStrip(hint))) + hint,
 	}
+}
+
+// rateText is the records' rate, or why there is none now: a rate kept
+// from before a pause or the end would read as current.
+func rateText(m Model, f *ingest.Frame) string {
+	switch {
+	case m.paused:
+		return "— rec/s"
+	case f.Ended || f.Source.State == parse.StatePaused:
+		return "0 rec/s"
+	}
+	return rate(f.RecordsPerSec) + " rec/s"
 }

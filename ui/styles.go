@@ -79,6 +79,7 @@ func NewStyles(r *lipgloss.Renderer) Styles {
 			"replaying": badge(p.accent),
 			"waiting":   badge(p.warn),
 			"done":      badge(p.muted),
+			"failed":    badge(p.bad),
 			"paused":    badge(p.warn).Reverse(true),
 		},
 		Kind: map[string]lipgloss.Style{

@@ -37,6 +37,13 @@ type Feed interface {
 	// Pacer is the source's pace control (a replay), nil for a source
 	// that cannot be paused.
 	Pacer() ingest.Pacer
+	// Lines returns the newest window records meeting every condition,
+	// with their raw lines where kept (ingest.Ingester.LinesBehind), and
+	// how many meet them; the screen calls it off its own goroutine.
+	Lines(ctx context.Context, conds []model.Cond, limit int) ([]ingest.LineBehind, int, error)
+	// SaveBaseline writes the window's profile, as a JSON report that
+	// --baseline reads, to path; off the screen's goroutine.
+	SaveBaseline(ctx context.Context, path string) error
 }
 
 // Options tune the screen. The zero value of a field means its default.
@@ -63,6 +70,10 @@ type Options struct {
 	// plan.Make while the Plan screen is on show (default 30 s; a pin
 	// measures at once).
 	MeasureEvery time.Duration
+	// Baseline is the profile given with --baseline (nil: none); the
+	// screen drops it for the rolling one, saying why, when the stream
+	// shares too few of its fields (model.CheckBaseline).
+	Baseline *model.Profile
 	// Clock tells the time for "pinned at" and "measured at" (default
 	// time.Now; tests fix it).
 	Clock func() time.Time

@@ -1,0 +1,94 @@
+package ingest
+
+import (
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"bitsift/model"
+	"bitsift/testdata/labelled"
+)
+
+// Each file of a multi-file read is detected on its own: two header shapes
+// and a syslog file, each read fully with its own time form.
+func TestDetectPerFile(t *testing.T) {
+	dir := t.TempDir()
+	var paths []string
+	for _, shape := range []string{"spark", "syslog", "apache-error"} {
+		lines, _ := labelled.Generate(shape, 300, 2)
+		p := filepath.Join(dir, shape+".log")
+		if err := os.WriteFile(p, []byte(strings.Join(lines, "\n")+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		paths = append(paths, p)
+	}
+	in, err := New(Config{Clock: func() time.Time { return time.Date(2026, 3, 20, 0, 0, 0, 0, time.UTC) }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := in.ReadFiles(context.Background(), paths); err != nil {
+		t.Fatal(err)
+	}
+	s := in.Snapshot(model.SnapshotOptions{})
+	if s.Input.Rejected != 0 || s.Records != 900 || s.Input.Format != "header+rfc3164" {
+		t.Errorf("format %s, %d records, %d rejected: %+v", s.Input.Format, s.Records, s.Input.Rejected, s.Input.RejectedExamples)
+	}
+	// Every record's time is its own: all within the generated day.
+	if time.Unix(0, s.Oldest).UTC().Format("2006-01-02") != "2026-03-14" || time.Unix(0, s.Newest).UTC().Format("2006-01-02") != "2026-03-14" {
+		t.Errorf("times %v .. %v", time.Unix(0, s.Oldest).UTC(), time.Unix(0, s.Newest).UTC())
+	}
+}
+
+// A stream that changes shape is detected again: after a run of lines the
+// first format cannot read, the rest are read in the new one.
+func TestRedetectShapeChange(t *testing.T) {
+	a, _ := labelled.Generate("jvm", 200, 3)
+	b, _ := labelled.Generate("syslog", 200, 3)
+	in, err := New(Config{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, l := range append(a, b...) {
+		in.Line([]byte(l), int64(i+1), "-")
+	}
+	in.Flush()
+	s := in.Snapshot(model.SnapshotOptions{})
+	if s.Input.Rejected != redetectRun || s.Records != 400-redetectRun || s.Input.Format != "header+rfc3164" {
+		t.Errorf("format %s, %d records, %d rejected", s.Input.Format, s.Records, s.Input.Rejected)
+	}
+	if w := in.Warnings(); len(w) != 1 || !strings.Contains(w[0], "changed shape") {
+		t.Errorf("warnings %q", w)
+	}
+}
+
+// A forced format that fits badly warns, naming what detection would take;
+// an unreadable input explains itself with a --pattern to start from.
+func TestForcedFormatWarnsAndUnreadableHelps(t *testing.T) {
+	words := "berth twelve is clear\nthe tide turns at noon\nno crane moves today\n"
+	in, err := New(Config{Format: "logfmt", Stdin: strings.NewReader(words)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in.ReadFiles(context.Background(), []string{"-"})
+	if w := in.Warnings(); len(w) != 1 || !strings.Contains(w[0], "--format logfmt fits these lines badly") {
+		t.Errorf("warnings %q", w)
+	}
+	help := in.Unreadable()
+	for _, want := range []string{"line 1: berth twelve is clear", "--pattern '^(?P<f1>\\S+)"} {
+		if !strings.Contains(help, want) {
+			t.Errorf("help lacks %q:\n%s", want, help)
+		}
+	}
+	lines, _ := labelled.Generate("hdfs", 100, 4)
+	ok, err := New(Config{Format: "header", Stdin: strings.NewReader(strings.Join(lines, "\n"))})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ok.ReadFiles(context.Background(), []string{"-"})
+	if w := ok.Warnings(); len(w) != 0 || ok.Unreadable() != "" {
+		t.Errorf("a fitting forced format warns %q / %q", w, ok.Unreadable())
+	}
+}

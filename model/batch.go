@@ -1,0 +1,286 @@
+package model
+
+import (
+	"runtime"
+	"sync"
+	"sync/atomic"
+
+	"bitsift/parse"
+)
+
+// Batches. AddBatch takes many records at once and leaves the model
+// exactly as Add called on each in turn would (the same counts, the same
+// figures; value ids may differ, as ids are reused in another order), but
+// does the work in passes that run over all the records of a segment:
+//
+//  1. keys → fields, record by record (new fields start here, and their
+//     pair tables are filled from the records already counted);
+//  2. values → ids, field by field, the fields spread over the cores (each
+//     field's table is its own, and its values go in input order, so the
+//     overflow and hashing decisions are those of Add);
+//  3. the records enter the store;
+//  4. pair-major counting: each pair table is updated in one tight loop
+//     over two columns, the pairs spread over the cores, with no Σ c·log c
+//     kept per increment (cellMap.sum computes it when a snapshot asks);
+//  5. the window evicts what it no longer covers, pair-major too.
+//
+// A segment ends where Add would do more than count: at a reclassification
+// (every reclassEvery records), an entropy-history note, and, with a
+// rolling baseline or an identifier field near its MaxDistinct cap, after
+// every record. Evicting at the end of a segment rather than after each
+// record evicts the same records: a records window keeps the newest N, and
+// a duration window's newest time only grows.
+
+// segmentMax is the most records of one segment.
+const segmentMax = 2048
+
+// parallelMin is the least work (values, or pair updates) a pass spreads
+// over the cores: below it, starting goroutines costs more than it saves.
+const parallelMin = 4096
+
+// batchState is AddBatch's scratch, kept between calls.
+type batchState struct {
+	ents   []entry  // the segment's values, record by record
+	byF    []entry  // the same, field by field (counting sort)
+	starts []int    // byF[starts[f]:starts[f+1]] are field f's
+	rows   []uint32 // rows[r*w+f]: record r's id of field f
+	w      int
+	evict  []uint32 // ids of evicted rows, column-major
+	after  []int    // see evictions
+}
+
+type entry struct {
+	f, r int32
+	v    []byte
+}
+
+// AddBatch takes recs[i] (line lines[i], time times[i]) into the window in
+// order, as Add does for each.
+func (m *Model) AddBatch(recs []*parse.Record, lines, times []int64) {
+	for len(recs) > 0 {
+		k := m.segmentLen(len(recs))
+		if k == 1 {
+			m.Add(recs[0], lines[0], times[0])
+		} else {
+			m.addSegment(recs[:k], lines[:k], times[:k])
+		}
+		recs, lines, times = recs[k:], lines[k:], times[k:]
+	}
+}
+
+// segmentLen is how many of the next n records one segment may take (see
+// above).
+func (m *Model) segmentLen(n int) int {
+	k := min(n, segmentMax, reclassEvery-m.sinceReclass, m.historyEvery()-m.base.sinceH)
+	if m.base.mode == BaselineRolling {
+		return 1
+	}
+	return max(k, 1)
+}
+
+func (m *Model) historyEvery() int {
+	every := historyEvery
+	if m.opt.Window.Kind == WindowRecords {
+		every = max(every, m.opt.Window.Records/historyLen)
+	}
+	return every
+}
+
+func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
+	b := &m.batch
+	k := len(recs)
+	// 1. Keys to fields.
+	b.ents = b.ents[:0]
+	for r, rec := range recs {
+		m.gen++
+		if m.gen == 0 {
+			clear(m.mark)
+			m.gen = 1
+		}
+		for i := 0; i < rec.Len(); i++ {
+			idx := m.fieldOf(rec.Key(i), i)
+			if idx < 0 || m.mark[idx] == m.gen {
+				continue // past the field cap, or a repeated key: the first one counts
+			}
+			m.mark[idx] = m.gen
+			b.ents = append(b.ents, entry{int32(idx), int32(r), rec.Value(i)})
+		}
+	}
+	w := len(m.fields)
+	b.w = w
+	// Counting sort by field, stable: each field's values in input order.
+	b.starts = append(b.starts[:0], make([]int, w+1)...)
+	for _, e := range b.ents {
+		b.starts[e.f+1]++
+	}
+	for f := 0; f < w; f++ {
+		b.starts[f+1] += b.starts[f]
+	}
+	if cap(b.byF) < len(b.ents) {
+		b.byF = make([]entry, len(b.ents))
+	}
+	b.byF = b.byF[:len(b.ents)]
+	next := append([]int(nil), b.starts[:w]...)
+	for _, e := range b.ents {
+		b.byF[next[e.f]] = e
+		next[e.f]++
+	}
+	// 2. Which records the window evicts after each record, as Add would.
+	nOld := m.st.n
+	e := m.evictions(times)
+	// 3. Values to ids, field by field, each field's evictions interleaved
+	// where Add does them, so that its ids and free list come out as Add's.
+	if cap(b.rows) < k*w {
+		b.rows = make([]uint32, k*w)
+	}
+	b.rows = b.rows[:k*w]
+	clear(b.rows)
+	if cap(b.evict) < e*w {
+		b.evict = make([]uint32, e*w)
+	}
+	ev := b.evict[:e*w]
+	old := min(e, nOld) // evicted records from before the segment
+	for f := 0; f < w; f++ {
+		m.st.column(f, 0, old, ev[f*e:f*e+old])
+	}
+	maxD := m.opt.MaxDistinct
+	spread(len(b.ents)+e, w, func(f int) {
+		fl := m.fields[f]
+		col := ev[f*e : (f+1)*e]
+		ents := b.byF[b.starts[f]:b.starts[f+1]]
+		gone := 0
+		for r := 0; r < k; r++ {
+			if len(ents) > 0 && int(ents[0].r) == r {
+				b.rows[r*w+f] = fl.add(ents[0].v, maxD)
+				ents = ents[1:]
+			}
+			for ; gone < b.after[r]; gone++ {
+				if gone >= old {
+					col[gone] = b.rows[(gone-nOld)*w+f]
+				}
+				if id := col[gone]; id != absent {
+					fl.remove(id)
+				}
+			}
+		}
+	})
+	// 4. The records enter the store.
+	for r := 0; r < k; r++ {
+		m.st.push(b.rows[r*w:(r+1)*w], rowMeta{line: lines[r], time: times[r]})
+		if times[r] > m.maxTime {
+			m.maxTime = times[r]
+		}
+	}
+	m.seen += int64(k)
+	// 5. Pairs, pair-major: the segment's records in, the evicted out.
+	spread((k+e)*len(m.pairs), len(m.pairs), func(i int) {
+		p := &m.pairs[i]
+		p.m.countStrided(b.rows, w, p.a, p.b, k)
+		p.m.uncount(ev[p.a*e:(p.a+1)*e], ev[p.b*e:(p.b+1)*e])
+	})
+	for range e {
+		m.st.pop()
+	}
+	if m.opt.Window.Kind == WindowDuration {
+		m.st.shrink()
+	}
+	m.sinceReclass += k
+	if m.sinceReclass >= reclassEvery {
+		m.sinceReclass = 0
+		m.reclassify()
+	}
+	m.base.sinceH += k
+	if m.base.sinceH >= m.historyEvery() {
+		m.base.sinceH = 0
+		m.noteEntropies()
+	}
+}
+
+// evictions fills b.after[r] with how many records Add would have evicted
+// by the end of adding the segment's record r (records of the window
+// before the segment first, then the segment's own), and returns the
+// total.
+func (m *Model) evictions(times []int64) int {
+	b := &m.batch
+	k, nOld := len(times), m.st.n
+	b.after = append(b.after[:0], make([]int, k)...)
+	gone := 0
+	maxTime := m.maxTime
+	for r := 0; r < k; r++ {
+		n := nOld + r + 1 - gone
+		switch m.opt.Window.Kind {
+		case WindowRecords:
+			if d := n - m.opt.Window.Records; d > 0 {
+				gone += d
+			}
+		case WindowDuration:
+			maxTime = max(maxTime, times[r])
+			d := m.opt.Window.Duration.Nanoseconds()
+			for ; n > 1; n-- {
+				var t int64
+				if gone < nOld {
+					t = m.st.metaAt(gone).time
+				} else {
+					t = times[gone-nOld]
+				}
+				if maxTime-t <= d {
+					break
+				}
+				gone++
+			}
+		}
+		b.after[r] = gone
+	}
+	return gone
+}
+
+// fieldOf is the field index of the i-th key of a record, creating the
+// field if new (-1 past the field cap). Records of one stream mostly list
+// their keys in the same order: the field the i-th key was last time is
+// tried before hashing.
+func (m *Model) fieldOf(key []byte, i int) int {
+	if i < len(m.hint) && m.hint[i] < len(m.fields) && m.fields[m.hint[i]].name == string(key) {
+		return m.hint[i]
+	}
+	idx, ok := m.byName[string(key)]
+	if !ok {
+		idx = m.newField(string(key))
+		if idx < 0 {
+			return -1
+		}
+	}
+	if i < len(m.hint) {
+		m.hint[i] = idx
+	} else if i < 256 {
+		m.hint = append(m.hint, idx)
+	}
+	return idx
+}
+
+// spread calls fn(i) for i in [0, n), on several goroutines when the work
+// is at least parallelMin; each i runs once, on one goroutine.
+func spread(work, n int, fn func(i int)) {
+	workers := min(runtime.GOMAXPROCS(0), n)
+	if work < parallelMin || workers < 2 {
+		for i := 0; i < n; i++ {
+			fn(i)
+		}
+		return
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
+				fn(i)
+			}
+		}()
+	}
+	wg.Wait()
+}

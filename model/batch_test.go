@@ -1,0 +1,229 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"strconv"
+	"testing"
+	"time"
+
+	"bitsift/parse"
+)
+
+// plainRec is one record of a random stream, kept for a plain recount.
+type plainRec struct {
+	kv   map[string]string
+	time int64
+}
+
+// randomStream makes n records over eight fields that appear, vanish, turn
+// constant and back, and an identifier that stops being one (unique values,
+// then a handful).
+func randomStream(r *rand.Rand, n int) []plainRec {
+	out := make([]plainRec, n)
+	t := int64(0)
+	phase := func(i, every int) int { return i / every % 4 }
+	for i := range out {
+		kv := map[string]string{}
+		kv["level"] = []string{"info", "warn", "error"}[r.IntN(3)]
+		if phase(i, 700) != 1 { // vanishes for a while
+			kv["berth"] = "b" + strconv.Itoa(r.IntN(9))
+		}
+		if phase(i, 900) == 2 { // constant for a while
+			kv["crane"] = "c0"
+		} else {
+			kv["crane"] = "c" + strconv.Itoa(r.IntN(4))
+		}
+		if i > 300 { // appears late
+			kv["tide"] = strconv.Itoa(r.IntN(40))
+		}
+		if phase(i, 1500) < 2 { // an identifier, then not
+			kv["manifest"] = "m" + strconv.Itoa(i)
+		} else {
+			kv["manifest"] = "m" + strconv.Itoa(r.IntN(5))
+		}
+		if r.IntN(3) > 0 {
+			kv["weight"] = strconv.Itoa(r.IntN(700))
+		}
+		kv["derived"] = kv["level"] + "/" + kv["crane"]
+		if r.IntN(50) == 0 {
+			kv["rare_"+strconv.Itoa(r.IntN(4))] = "x"
+		}
+		t += int64(r.IntN(3)) * int64(time.Millisecond)
+		out[i] = plainRec{kv, t}
+	}
+	return out
+}
+
+func toRecord(p plainRec, rec *parse.Record, keys []string) {
+	rec.Reset()
+	for _, k := range keys {
+		if v, ok := p.kv[k]; ok {
+			rec.AddString(k, v)
+		}
+	}
+	// Keys the fixed order does not list (the rare ones), in a stable order.
+	var extra []string
+	for k := range p.kv {
+		if len(k) > 5 && k[:5] == "rare_" {
+			extra = append(extra, k)
+		}
+	}
+	for i := 1; i < len(extra); i++ {
+		for j := i; j > 0 && extra[j] < extra[j-1]; j-- {
+			extra[j], extra[j-1] = extra[j-1], extra[j]
+		}
+	}
+	for _, k := range extra {
+		rec.AddString(k, p.kv[k])
+	}
+}
+
+// plainEntropy is H over the given records of the value (or pair of
+// values) of the named fields, absent a value of its own: a recount with
+// Go maps and float logs, nothing shared with the model.
+func plainEntropy(recs []plainRec, a, b string) float64 {
+	counts := map[[2]string]int{}
+	for _, p := range recs {
+		va, oka := p.kv[a]
+		vb, okb := p.kv[b]
+		if !oka {
+			va = "\x00absent"
+		}
+		if !okb {
+			vb = "\x00absent"
+		}
+		if b == "" {
+			vb = ""
+		}
+		counts[[2]string{va, vb}]++
+	}
+	n := float64(len(recs))
+	h := 0.0
+	for _, c := range counts {
+		p := float64(c) / n
+		h -= p * math.Log2(p)
+	}
+	return h
+}
+
+// windowOf is what a window holds after the records up to i, evicting as
+// the model's rules say, by plain slicing.
+func windowOf(all []plainRec, i int, w Window) []plainRec {
+	recs := all[:i+1]
+	switch w.Kind {
+	case WindowRecords:
+		return recs[max(0, len(recs)-w.Records):]
+	case WindowDuration:
+		// Evicted while older than the newest time so far by more than d,
+		// keeping at least the newest record; once evicted, gone.
+		lo, maxT := 0, int64(math.MinInt64)
+		for j, p := range recs {
+			maxT = max(maxT, p.time)
+			for lo < j && maxT-recs[lo].time > w.Duration.Nanoseconds() {
+				lo++
+			}
+		}
+		return recs[lo:]
+	}
+	return recs
+}
+
+// TestBatchMatchesRecount: random streams with fields that appear, vanish,
+// turn constant and back, and an identifier that stops being one, under
+// every kind of window (so records leave mid-batch), fed through AddBatch
+// in batches of random sizes. At random points every field's entropy and
+// every measured pair's joint entropy must equal a plain recount of the
+// window's records (Go maps and float logs), and the whole snapshot must
+// equal that of a model fed the same records one by one with Add.
+func TestBatchMatchesRecount(t *testing.T) {
+	keys := []string{"level", "berth", "crane", "tide", "manifest", "weight", "derived"}
+	windows := []Window{
+		{Kind: WindowAll},
+		{Kind: WindowRecords, Records: 1000},
+		{Kind: WindowRecords, Records: 3000},
+		{Kind: WindowDuration, Duration: 700 * time.Millisecond},
+	}
+	for seed := uint64(1); seed <= 3; seed++ {
+		for _, w := range windows {
+			r := rand.New(rand.NewPCG(seed, 77))
+			stream := randomStream(r, 8000)
+			batched, single := New(Options{Window: w}), New(Options{Window: w})
+			var recs []*parse.Record
+			var lines, times []int64
+			var one parse.Record
+			for i := 0; i < len(stream); {
+				k := min(len(stream)-i, 1+r.IntN(3000))
+				if r.IntN(4) == 0 {
+					k = min(len(stream)-i, 1+r.IntN(5))
+				}
+				recs, lines, times = recs[:0], lines[:0], times[:0]
+				for j := i; j < i+k; j++ {
+					rec := &parse.Record{}
+					toRecord(stream[j], rec, keys)
+					recs = append(recs, rec)
+					lines, times = append(lines, int64(j+1)), append(times, stream[j].time)
+					toRecord(stream[j], &one, keys)
+					single.Add(&one, int64(j+1), stream[j].time)
+				}
+				batched.AddBatch(recs, lines, times)
+				i += k
+				if r.IntN(5) > 0 && i < len(stream) {
+					continue
+				}
+				name := w.String() + "/seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
+				got, want := batched.Snapshot(SnapshotOptions{}), single.Snapshot(SnapshotOptions{})
+				got.Taken, want.Taken = time.Time{}, time.Time{}
+				if err := sameSnapshot(got, want); err != "" {
+					t.Fatalf("%s: the batched snapshot differs from Add's: %s", name, err)
+				}
+				win := windowOf(stream, i-1, w)
+				if got.Records != len(win) {
+					t.Fatalf("%s: %d records in the window, the recount has %d", name, got.Records, len(win))
+				}
+				for a := range got.Fields {
+					fa := got.Fields[a].Name
+					if h := plainEntropy(win, fa, ""); math.Abs(h-got.Fields[a].Entropy) > 1e-9 {
+						t.Fatalf("%s: H(%s) = %.12f, recount %.12f", name, fa, got.Fields[a].Entropy, h)
+					}
+					for b := a + 1; b < len(got.Fields); b++ {
+						if !got.HasPair(a, b) {
+							continue
+						}
+						fb := got.Fields[b].Name
+						if h := plainEntropy(win, fa, fb); math.Abs(h-got.Joint(a, b)) > 1e-9 {
+							t.Fatalf("%s: H(%s,%s) = %.12f, recount %.12f", name, fa, fb, got.Joint(a, b), h)
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// sameSnapshot compares two snapshots' figures exactly (NaN equal to NaN)
+// and says where they differ first.
+func sameSnapshot(got, want *Snapshot) string {
+	same := func(g, w float64) bool { return g == w || math.IsNaN(g) && math.IsNaN(w) }
+	if got.Records != want.Records || got.Seen != want.Seen || got.Oldest != want.Oldest || got.Newest != want.Newest ||
+		got.LeftOutFields != want.LeftOutFields || len(got.Fields) != len(want.Fields) {
+		return fmt.Sprintf("records %d/%d seen %d/%d fields %d/%d", got.Records, want.Records, got.Seen, want.Seen, len(got.Fields), len(want.Fields))
+	}
+	for a := range want.Fields {
+		if !reflect.DeepEqual(got.Fields[a], want.Fields[a]) {
+			return fmt.Sprintf("field %d:\n got %+v\nwant %+v", a, got.Fields[a], want.Fields[a])
+		}
+		for b := range want.Fields {
+			if !same(got.Joint(a, b), want.Joint(a, b)) || !same(got.emi[a][b], want.emi[a][b]) {
+				return fmt.Sprintf("pair %s,%s: H %v E[I] %v, want %v and %v", want.Fields[a].Name, want.Fields[b].Name,
+					got.Joint(a, b), got.emi[a][b], want.Joint(a, b), want.emi[a][b])
+			}
+		}
+	}
+	if !reflect.DeepEqual(got.emiApprox, want.emiApprox) {
+		return "E[I] approximations"
+	}
+	return ""
+}

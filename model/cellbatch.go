@@ -1,0 +1,78 @@
+package model
+
+// Batch updates of a cellMap (see batch.go): counts change with no
+// Σ c·log c kept per increment; stale marks s out of date, and sum brings
+// it back from the counts when a snapshot asks. The fixed-point terms are
+// integers, so the sum is exactly what the incremental updates would have
+// kept.
+
+// countStrided adds one record to cell (rows[r*w+a], rows[r*w+b]) for each
+// record r < k.
+func (m *cellMap) countStrided(rows []uint32, w, a, b, k int) {
+	m.stale = true
+	for r := 0; r < k; r++ {
+		x, y := uint64(rows[r*w+a]), uint64(rows[r*w+b])
+		if x < m.dh && y < m.dw {
+			j := x*m.dw + y
+			c := m.dense[j]
+			if c == 0 {
+				m.len++
+			}
+			m.dense[j] = c + 1
+			continue
+		}
+		m.inc(x<<32 | y)
+	}
+}
+
+// uncount takes one record off cell (as[r], bs[r]) for each r.
+func (m *cellMap) uncount(as, bs []uint32) {
+	m.stale = true
+	for r, x := range as {
+		a, b := uint64(x), uint64(bs[r])
+		if a < m.dh && b < m.dw {
+			j := a*m.dw + b
+			c := m.dense[j]
+			if c == 0 {
+				panic("model: cellMap.uncount of an empty cell")
+			}
+			if c == 1 {
+				m.len--
+			}
+			m.dense[j] = c - 1
+			continue
+		}
+		m.dec(a<<32 | b)
+	}
+}
+
+// sum is S = Σ clogc(count) over the cells, recomputed if stale.
+func (m *cellMap) sum() int64 {
+	if !m.stale {
+		return m.s
+	}
+	var s int64
+	tab := clogc0
+	add := func(c int32) {
+		if uint32(c) < chunkSize {
+			s += tab[c]
+		} else {
+			s += clogc(int64(c))
+		}
+	}
+	if m.dense != nil {
+		for _, c := range m.dense {
+			if c > 1 {
+				add(c)
+			}
+		}
+	} else {
+		for _, c := range m.counts {
+			if c > 1 {
+				add(c)
+			}
+		}
+	}
+	m.s, m.stale = s, false
+	return s
+}
