@@ -151,7 +151,9 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 			in.markTime()
 		}
 		rec := &b.recs[i]
-		in.prepare(rec, l.num, t, l.source)
+		if !in.prepare(rec, l.num, t, l.source) {
+			continue
+		}
 		in.held.recs = append(in.held.recs, rec)
 		in.held.lines = append(in.held.lines, l.num)
 		in.held.times = append(in.held.times, t)

@@ -366,21 +366,24 @@ func (in *Ingester) add(num int64, source string) {
 
 // commit prepares a parsed record and takes it into the model.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
-	in.prepare(rec, num, t, source)
-	in.model.Add(rec, num, t)
+	if in.prepare(rec, num, t, source) {
+		in.model.Add(rec, num, t)
+	}
 }
 
 // prepare adds the companions to a parsed record, redacts it, and shows it
 // to the Observer (which does not read the model, so a batch's records
-// may be shown before the model takes them).
-func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
+// may be shown before the model takes them). It says whether the record
+// goes on to the model: false when --where, --since or --until leave it
+// out (counted in Input.Filtered).
+func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) bool {
 	in.comp.Apply(rec)
 	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
 		in.input.Filtered++
 		if in.cfg.Observer != nil {
 			in.cfg.Observer.Rejected(num, source, "left out by --where, --since or --until")
 		}
-		return
+		return false
 	}
 	if in.redact != nil {
 		// After the companions, which are made only from fields that are
@@ -390,6 +393,7 @@ func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) {
 	if in.cfg.Observer != nil {
 		in.cfg.Observer.Record(rec, num, source, t)
 	}
+	return true
 }
 
 // endSource closes records left open at the end of a source (CRI partial
