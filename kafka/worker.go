@@ -58,7 +58,11 @@ type WorkerOptions struct {
 
 	// crashAfter, in tests, makes the worker stop dead right after
 	// writing its crashAfter-th profile, before committing its offsets.
+	// With instanceID (static membership) its client then closes without
+	// leaving the group, as a killed process does: the group notices when
+	// its session times out.
 	crashAfter int
+	instanceID string
 }
 
 // Segment is the records of one partition that one profile counts: the
@@ -117,7 +121,7 @@ type Worker struct {
 	crashed bool
 	err     error
 
-	Stats WorkerStats
+	Stats WorkerStats // under mu while Run runs
 }
 
 // WorkerStats count what a worker did.
@@ -164,6 +168,9 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 		kgo.AdjustFetchOffsetsFn(w.adjust),
 		kgo.OnPartitionsRevoked(w.revoked), kgo.OnPartitionsLost(w.lost),
 	)
+	if opt.instanceID != "" {
+		opts = append(opts, kgo.InstanceID(opt.instanceID))
+	}
 	if opt.SessionTimeout > 0 {
 		opts = append(opts, kgo.SessionTimeout(opt.SessionTimeout), kgo.HeartbeatInterval(opt.SessionTimeout/5),
 			kgo.RebalanceTimeout(4*opt.SessionTimeout))
@@ -209,6 +216,7 @@ func (w *Worker) Run(ctx context.Context) error {
 		})
 		n := fetches.NumRecords()
 		w.mu.Lock()
+		w.Stats.Records += int64(n)
 		fetches.EachRecord(func(r *kgo.Record) { w.pending = append(w.pending, r) })
 		err := w.route(ctx, n == 0)
 		if err == nil {
@@ -230,7 +238,6 @@ func (w *Worker) Run(ctx context.Context) error {
 		}
 		if n > 0 {
 			last = time.Now()
-			w.Stats.Records += int64(n)
 		} else if w.opt.Idle > 0 && time.Since(last) >= w.opt.Idle {
 			w.logf("no record for --idle %s: stopping", w.opt.Idle)
 			break
@@ -337,6 +344,9 @@ func (w *Worker) closeAged() error {
 // closeSeg writes partition p's open profile and queues its offset for
 // the commit.
 func (w *Worker) closeSeg(p int32) error {
+	if w.crashed {
+		return errCrashed // a dead worker writes nothing more
+	}
 	s := w.segs[p]
 	if s == nil {
 		return nil
