@@ -96,3 +96,8 @@ func showProfileScreen(ctx context.Context, std IO, p *profile.Profile, name str
 	}
 	return err
 }
+
+// SetWhere: a profile holds counts, not records, so it cannot be narrowed.
+func (f *profileFeed) SetWhere(context.Context, []model.Cond, []string) error {
+	return errors.New("a profile holds counts, not records: it cannot be narrowed")
+}

@@ -116,6 +116,10 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
 // it returns false the rest is left (the live runner is stopping). It
 // returns the first fault.
 func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
+	// Records read line by line are held too (commit), and go to the
+	// model with the parsed ones at each flush.
+	in.holding = true
+	defer func() { in.flushRecords(); in.holding = false }()
 	for i := range b.lines {
 		if between != nil && i%chunkLines == chunkLines-1 {
 			in.flushRecords()
@@ -146,8 +150,7 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 		t := l.t
 		if !l.hasTime {
 			t = in.cfg.Clock().UnixNano()
-		} else if !in.timeMarked {
-			in.flushRecords() // the records before it were taken before the mark
+		} else {
 			in.markTime()
 		}
 		rec := &b.recs[i]
@@ -158,14 +161,15 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 		in.held.lines = append(in.held.lines, l.num)
 		in.held.times = append(in.held.times, t)
 	}
-	in.flushRecords()
 	return first
 }
 
-// heldRecords are a parsed batch's records on their way to the model.
+// heldRecords are a batch's records on their way to the model: a parsed
+// batch's own, or copies in pool of records read line by line.
 type heldRecords struct {
 	recs         []*parse.Record
 	lines, times []int64
+	pool         []*parse.Record
 }
 
 // flushRecords takes the held records into the model.

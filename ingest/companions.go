@@ -2,10 +2,12 @@ package ingest
 
 import (
 	"strings"
+	"unicode/utf8"
 
 	"bitsift/companion"
 	"bitsift/model"
 	"bitsift/parse"
+	"bitsift/sanitize"
 )
 
 // chooseCompanions chooses the companion fields (package companion) from
@@ -35,6 +37,22 @@ func (in *Ingester) chooseCompanions(sample []*parse.Record) {
 	in.comp.Warm(sample)
 }
 
+// maxLabelText is the most of a template's text shown beside its id in a
+// snapshot (a message template can be as long as a line; screens redraw
+// the labels on every frame). annotate gives the whole text.
+const maxLabelText = 160
+
+// shorten cuts s to at most n bytes at a rune boundary, ending it with "…".
+func shorten(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	for n > 0 && !utf8.RuneStart(s[n]) {
+		n--
+	}
+	return s[:n] + "…"
+}
+
 // TemplateText returns the current text of the template whose id is value,
 // for the template companion named field ("msg~template").
 func (in *Ingester) TemplateText(field, value string) (string, bool) {
@@ -57,7 +75,10 @@ func (in *Ingester) labelTemplates(s *model.Snapshot) {
 			return v
 		}
 		if t, ok := in.comp.Text(field, v); ok {
-			return v + " " + t
+			// The text is a label for people, made from log values:
+			// escaped here, so that no screen, report or plan that
+			// shows it can be steered by what a log line holds.
+			return v + " " + sanitize.String(shorten(t, maxLabelText))
 		}
 		return v
 	}

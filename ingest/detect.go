@@ -132,6 +132,7 @@ func (in *Ingester) rejected(line []byte) {
 	if err != nil || d.Confidence < 2*MinConfidence || d.Format.Name() == in.format.Name() {
 		return
 	}
+	in.flushRecords() // the records read as the old format go first
 	in.setFormat(d.Format, d.Confidence)
 	in.formatChosen()
 	in.warn(fmt.Sprintf("the lines changed shape: read as %s from line %d on", d.Format.Name(), in.lastNum+1))

@@ -45,3 +45,15 @@ func (f *Filter) Keep(rec *parse.Record, t int64) bool {
 
 // Filter is the Ingester's filter (nil: none).
 func (in *Ingester) Filter() *Filter { return in.cfg.Filter }
+
+// SetWhere narrows the records taken from now on to those meeting conds
+// (text: as typed), keeping --since and --until; none clears it. For the
+// owner goroutine: records already in the window stay until they leave.
+func (in *Ingester) SetWhere(conds []model.Cond, text []string) {
+	f := &Filter{}
+	if in.cfg.Filter != nil {
+		*f = *in.cfg.Filter
+	}
+	f.Where, f.Text = conds, text
+	in.cfg.Filter = f
+}

@@ -100,7 +100,9 @@ type Ingester struct {
 	lastNum  int64
 
 	input model.Input
-	held  heldRecords // a parsed batch's records, for the model (batch.go)
+	held  heldRecords // a batch's records, for the model (batch.go)
+	// holding: a batch is being taken, and commit holds its records.
+	holding bool
 }
 
 type pendingLine struct {
@@ -352,6 +354,7 @@ func (in *Ingester) recTime() int64 {
 // it is to be analysed like any other.
 func (in *Ingester) markTime() {
 	if !in.timeMarked {
+		in.flushRecords() // the records before it were taken before the mark
 		in.timeMarked = true
 		if !in.cfg.AnalyseTime {
 			in.model.SetTimestamp(in.times.Key())
@@ -365,17 +368,32 @@ func (in *Ingester) add(num int64, source string) {
 }
 
 // commit prepares a parsed record and takes it into the model.
+// While a batch is being taken (holding), the record is copied and held
+// for the batch's AddBatch instead.
 func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
-	if in.prepare(rec, num, t, source) {
-		in.model.Add(rec, num, t)
+	if !in.prepare(rec, num, t, source) {
+		return
 	}
+	if !in.holding {
+		in.model.Add(rec, num, t)
+		return
+	}
+	h := &in.held
+	if len(h.pool) <= len(h.recs) {
+		h.pool = append(h.pool, &parse.Record{})
+	}
+	c := h.pool[len(h.recs)]
+	c.CopyFrom(rec)
+	h.recs = append(h.recs, c)
+	h.lines = append(h.lines, num)
+	h.times = append(h.times, t)
 }
 
 // prepare adds the companions to a parsed record, redacts it, and shows it
 // to the Observer (which does not read the model, so a batch's records
 // may be shown before the model takes them). It says whether the record
-// is kept: one left out by --where, --since or --until never reaches the
-// model (nor, unredacted, anything else).
+// goes on to the model: false when --where, --since or --until leave it
+// out (counted in Input.Filtered).
 func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) bool {
 	if rec.DupKeys {
 		in.input.DupKeyRecords++

@@ -58,7 +58,11 @@ type WorkerOptions struct {
 
 	// crashAfter, in tests, makes the worker stop dead right after
 	// writing its crashAfter-th profile, before committing its offsets.
+	// With instanceID (static membership) its client then closes without
+	// leaving the group, as a killed process does: the group notices when
+	// its session times out.
 	crashAfter int
+	instanceID string
 }
 
 // Segment is the records of one partition that one profile counts: the
@@ -99,6 +103,9 @@ type Worker struct {
 	id  string // in file names: host, process and a random part
 	cl  *kgo.Client
 	adm *kadm.Client
+	// ready is closed once cl and adm are set: kgo.NewClient starts joining
+	// the group before it returns, so adjust may run before then.
+	ready chan struct{}
 
 	mu sync.Mutex // the state below; held by the poll loop and the group callbacks
 	// proto has chosen format and companions (from the first records);
@@ -114,7 +121,7 @@ type Worker struct {
 	crashed bool
 	err     error
 
-	Stats WorkerStats
+	Stats WorkerStats // under mu while Run runs
 }
 
 // WorkerStats count what a worker did.
@@ -148,7 +155,7 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 	if err != nil {
 		return nil, err
 	}
-	w := &Worker{opt: opt, id: workerID(), segs: map[int32]*Segment{}, next: map[int32]int64{}, commits: map[int32]int64{}}
+	w := &Worker{opt: opt, id: workerID(), segs: map[int32]*Segment{}, next: map[int32]int64{}, commits: map[int32]int64{}, ready: make(chan struct{})}
 	reset := kgo.NewOffset().AtStart()
 	if opt.Start.Kind == "newest" {
 		reset = kgo.NewOffset().AtEnd()
@@ -161,6 +168,9 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 		kgo.AdjustFetchOffsetsFn(w.adjust),
 		kgo.OnPartitionsRevoked(w.revoked), kgo.OnPartitionsLost(w.lost),
 	)
+	if opt.instanceID != "" {
+		opts = append(opts, kgo.InstanceID(opt.instanceID))
+	}
 	if opt.SessionTimeout > 0 {
 		opts = append(opts, kgo.SessionTimeout(opt.SessionTimeout), kgo.HeartbeatInterval(opt.SessionTimeout/5),
 			kgo.RebalanceTimeout(4*opt.SessionTimeout))
@@ -169,6 +179,7 @@ func NewWorker(opt WorkerOptions) (*Worker, error) {
 		return nil, err
 	}
 	w.adm = kadm.NewClient(w.cl)
+	close(w.ready)
 	return w, nil
 }
 
@@ -205,6 +216,7 @@ func (w *Worker) Run(ctx context.Context) error {
 		})
 		n := fetches.NumRecords()
 		w.mu.Lock()
+		w.Stats.Records += int64(n)
 		fetches.EachRecord(func(r *kgo.Record) { w.pending = append(w.pending, r) })
 		err := w.route(ctx, n == 0)
 		if err == nil {
@@ -226,7 +238,6 @@ func (w *Worker) Run(ctx context.Context) error {
 		}
 		if n > 0 {
 			last = time.Now()
-			w.Stats.Records += int64(n)
 		} else if w.opt.Idle > 0 && time.Since(last) >= w.opt.Idle {
 			w.logf("no record for --idle %s: stopping", w.opt.Idle)
 			break
@@ -333,6 +344,9 @@ func (w *Worker) closeAged() error {
 // closeSeg writes partition p's open profile and queues its offset for
 // the commit.
 func (w *Worker) closeSeg(p int32) error {
+	if w.crashed {
+		return errCrashed // a dead worker writes nothing more
+	}
 	s := w.segs[p]
 	if s == nil {
 		return nil
@@ -395,6 +409,11 @@ func (w *Worker) commit(ctx context.Context) error {
 // committed, or the log's start when retention has deleted records past
 // it (those records are missing: merge reports the gap).
 func (w *Worker) adjust(ctx context.Context, offs map[string]map[int32]kgo.Offset) (map[string]map[int32]kgo.Offset, error) {
+	select {
+	case <-w.ready:
+	case <-ctx.Done():
+		return offs, ctx.Err()
+	}
 	starts, err := w.adm.ListStartOffsets(ctx, w.opt.Topic)
 	w.mu.Lock()
 	defer w.mu.Unlock()

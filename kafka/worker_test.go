@@ -119,7 +119,11 @@ func runFleet(t *testing.T, encode func(*Segment, io.Writer) error, newIngester 
 	}()
 
 	opts := func(name string, crashAfter int) WorkerOptions {
-		return WorkerOptions{Conn: Conn{Brokers: c.Brokers, ClientID: name}, Topic: topic, Group: topic + "-profilers", Dir: dir,
+		id := ""
+		if crashAfter > 0 {
+			id = topic + "-" + name // static: its end is noticed as a kill's, at the session timeout
+		}
+		return WorkerOptions{instanceID: id, Conn: Conn{Brokers: c.Brokers, ClientID: name}, Topic: topic, Group: topic + "-profilers", Dir: dir,
 			Start: Start{Kind: "oldest"}, Bucket: 400 * time.Millisecond, Idle: 3 * time.Second,
 			Ingester: newIngester, Encode: encode, SessionTimeout: c.SessionTimeout(), crashAfter: crashAfter, Log: testLog{t, name}}
 	}
@@ -169,6 +173,11 @@ func runFleet(t *testing.T, encode func(*Segment, io.Writer) error, newIngester 
 	if !errors.Is(ended["w1"], errCrashed) {
 		t.Fatalf("w1 ended with %v, not killed after writing", ended["w1"])
 	}
+	waitUntil(t, "w2 to read records", func() bool {
+		w2.mu.Lock()
+		defer w2.mu.Unlock()
+		return w2.Stats.Records > 0
+	})
 	leave2()
 	waitFor("w2")
 	if err := <-prodDone; err != nil {

@@ -16,6 +16,12 @@ func (m *Model) WithWindow(w Window) *Model {
 	opt := m.opt
 	opt.Window = w
 	r := New(opt)
+	// Fields bitsift made stay marked as made by it: unmarked, a
+	// companion would pass for a field of the log (and be planned, and
+	// predict its own source).
+	for name, s := range m.synthetic {
+		r.DeclareSynthetic(name, s)
+	}
 	for _, f := range m.fields {
 		r.newField(f.name)
 	}

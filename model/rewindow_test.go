@@ -79,3 +79,25 @@ func TestWithWindow(t *testing.T) {
 		}
 	})
 }
+
+// TestWithWindowKeepsSynthetic: a field bitsift made stays marked as made
+// by it when the window changes (issue 15: cycling the window turned a
+// companion into a field of the log).
+func TestWithWindowKeepsSynthetic(t *testing.T) {
+	m := New(Options{Window: Window{Kind: WindowRecords, Records: 100}})
+	m.DeclareSynthetic("wait~log", Synthetic{Source: "wait", Method: "log10 buckets"})
+	var rec parse.Record
+	for i := range 50 {
+		rec.Reset()
+		rec.AddString("wait", strconv.Itoa(i%9))
+		rec.AddString("wait~log", strconv.Itoa(i%9/3))
+		m.Add(&rec, int64(i+1), int64(i))
+	}
+	for _, w := range []Window{{Kind: WindowAll}, {Kind: WindowRecords, Records: 10}} {
+		s := m.WithWindow(w).Snapshot(SnapshotOptions{})
+		i := s.Index("wait~log")
+		if i < 0 || s.Fields[i].Synthetic == nil || s.Fields[i].Synthetic.Source != "wait" {
+			t.Errorf("window %v: wait~log not marked as made by bitsift", w)
+		}
+	}
+}

@@ -111,3 +111,25 @@ func TestCUSUMStep(t *testing.T) {
 		t.Errorf("segments %v, want [[40 60]]", segs)
 	}
 }
+
+// BenchmarkTimeline: the timeline of 200,000 demo records (a report's
+// extra scan), against the deep snapshot a report takes anyway.
+func BenchmarkTimeline(b *testing.B) {
+	in, _ := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
+	g := demo.New(1, 200_000)
+	for i := int64(1); i <= 200_000; i++ {
+		in.Line(g.Append(nil), i, "demo")
+	}
+	in.Flush()
+	s := in.Snapshot(model.SnapshotOptions{})
+	b.Run("timeline", func(b *testing.B) {
+		for range b.N {
+			in.Model().Timeline(s, []string{"demo"})
+		}
+	})
+	b.Run("deep-snapshot", func(b *testing.B) {
+		for range b.N {
+			in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
+		}
+	})
+}

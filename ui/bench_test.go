@@ -32,11 +32,11 @@ func liveModel(b *testing.B, rate float64) (Model, *LiveFeed) {
 }
 
 // BenchmarkKeyUnderIngest is the time the UI goroutine spends on one key
-// (Update and the redraw's View) while the demo streams in at 100,000
+// (Update and the redraw's View) while the demo streams in at 200,000
 // lines/s on the other goroutines: the latency a key sees, less the
 // terminal's own.
 func BenchmarkKeyUnderIngest(b *testing.B) {
-	m, live := liveModel(b, 100_000)
+	m, live := liveModel(b, 200_000)
 	keys := []tea.KeyMsg{
 		{Type: tea.KeyDown}, {Type: tea.KeyDown}, {Type: tea.KeyTab}, {Type: tea.KeyRight},
 		{Type: tea.KeyDown}, {Type: tea.KeyTab}, {Type: tea.KeyDown}, {Type: tea.KeyTab}, {Type: tea.KeyTab},
@@ -58,7 +58,7 @@ func BenchmarkKeyUnderIngest(b *testing.B) {
 // load: request a frame, put it on show, draw. A key that arrives during
 // it waits at most this long.
 func BenchmarkFrameUnderIngest(b *testing.B) {
-	m, live := liveModel(b, 100_000)
+	m, live := liveModel(b, 200_000)
 	for b.Loop() {
 		f, err := live.Frame(context.Background(), m.snapshotOptions())
 		if err != nil {

@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/charmbracelet/bubbles/key"
 	"github.com/charmbracelet/bubbles/viewport"
@@ -311,6 +312,11 @@ func (v driftView) surprising() ([]string, []driftItem) {
 			because = append(because, s)
 		}
 		lead := padLeft(formatFloat(r.Bits, 1), 6) + " bits  line " + padRight(count(r.Line), 8) + " "
+		if r.Time != 0 && v.w >= 100 {
+			// Where there is room: when, in log time (enter shows the
+			// file and the whole line).
+			lead += time.Unix(0, r.Time).UTC().Format("15:04:05.000") + " "
+		}
 		conds := []model.Cond{{Line: r.Line}}
 		for k, val := range r.Record {
 			conds = append(conds, model.Cond{Field: k, Value: val})

@@ -17,3 +17,8 @@ func (s *staticFeed) Lines(ctx context.Context, conds []model.Cond, limit int) (
 func (s *staticFeed) SaveBaseline(ctx context.Context, path string) error {
 	return errors.New("no window in this test")
 }
+
+// SetWhere: the fixture takes no records.
+func (s *staticFeed) SetWhere(ctx context.Context, conds []model.Cond, text []string) error {
+	return nil
+}

@@ -25,6 +25,10 @@ type focusView struct {
 	// one as the figures settle.
 	auto bool
 	vp   viewport.Model
+	// sel is the top value under the cursor (↑ ↓; enter opens its
+	// lines) of shownValues, the top values the page lists.
+	sel         int
+	shownValues []model.ValueCount
 }
 
 func newFocusView(e *env) focusView {
@@ -61,8 +65,58 @@ func (v focusView) refresh() focusView {
 		v.vp.SetContent(v.env.st.Muted.Render("  no fields yet"))
 		return v
 	}
+	v.shownValues = v.topShown(&s.Fields[s.Index(v.field)])
+	v.sel = max(0, min(v.sel, len(v.shownValues)-1))
 	v.vp.SetContent(strings.Join(v.page(s), "\n"))
 	return v
+}
+
+// topShown is the top values the page lists, as many as the height lets.
+func (v focusView) topShown(fs *model.FieldStats) []model.ValueCount {
+	top := fs.Top
+	if k := max(4, (v.h-10)/2); len(top) > k {
+		top = top[:k]
+	}
+	return top
+}
+
+// nextGiven shows the field given the next (d = 1) or previous field
+// measured with it, in name order: the "given" changes without going back
+// to Pairs.
+func (v focusView) nextGiven(d int) focusView {
+	f := v.env.frame
+	if f == nil {
+		return v
+	}
+	s := f.Snap
+	i := s.Index(v.field)
+	if i < 0 {
+		return v
+	}
+	var names []string
+	for j := range s.Fields {
+		if j != i && s.HasPair(i, j) {
+			names = append(names, s.Fields[j].Name)
+		}
+	}
+	if len(names) == 0 {
+		return v
+	}
+	sort.Strings(names)
+	cur := v.given
+	if cur == "" {
+		cur = s.Fields[i].BestGiven
+	}
+	k := sort.SearchStrings(names, cur)
+	if k < len(names) && names[k] == cur {
+		k = (k + d + len(names)) % len(names)
+	} else if d < 0 {
+		k = (k - 1 + len(names)) % len(names)
+	} else {
+		k %= len(names)
+	}
+	v.given = names[k]
+	return v.refresh()
 }
 
 // firstInformative is the field with the most entropy short of the
@@ -100,17 +154,32 @@ func (v focusView) step(d int) focusView {
 // Update handles keys and the mouse wheel.
 func (v focusView) Update(msg tea.Msg) (focusView, tea.Cmd) {
 	k := v.env.keys
-	if s, ok := scrollOf(k, msg, v.h); ok {
-		scrollViewport(&v.vp, s)
-		return v, nil
-	}
 	if km, ok := msg.(tea.KeyMsg); ok {
 		switch {
 		case key.Matches(km, k.Left):
 			return v.step(-1), nil
 		case key.Matches(km, k.Right):
 			return v.step(1), nil
+		case key.Matches(km, k.NextGiven):
+			return v.nextGiven(1), nil
+		case key.Matches(km, k.PrevGiven):
+			return v.nextGiven(-1), nil
+		case key.Matches(km, k.Open) && len(v.shownValues) > 0:
+			tv := v.shownValues[min(v.sel, len(v.shownValues)-1)]
+			title := sanitize.String(v.field) + "=" + sanitize.String(tv.Value)
+			if tv.Absent {
+				title = "records without " + sanitize.String(v.field)
+			}
+			return v, openLines(title, []model.Cond{{Field: v.field, Value: tv.Value, Absent: tv.Absent}})
+		case (key.Matches(km, k.Up) || key.Matches(km, k.Down)) && len(v.shownValues) > 0:
+			s, _ := scrollOf(k, msg, v.h)
+			v.sel = s.apply(v.sel, len(v.shownValues))
+			return v.refresh(), nil
 		}
+	}
+	if s, ok := scrollOf(k, msg, v.h); ok {
+		scrollViewport(&v.vp, s)
+		return v, nil
 	}
 	return v, nil
 }
@@ -137,7 +206,7 @@ func (v focusView) page(s *model.Snapshot) []string {
 	switch {
 	case fs.BestGiven != "":
 		out = append(out, st.Muted.Render(ansiFit("best given "+sanitize.String(fs.BestGiven)+": "+bits(fs.Residual)+
-			" bits left, U = "+formatFloat(fs.Uncertainty, 2)+"  ·  ←/→ other fields", w)))
+			" bits left, U = "+formatFloat(fs.Uncertainty, 2)+"  ·  ←/→ other fields · [ ] other given · enter: lines", w)))
 	case fs.Kind == model.Identifier:
 		out = append(out, st.Muted.Render(ansiFit("an identifier: nearly every value is new, so it is not measured against other fields", w)))
 	default:
@@ -156,19 +225,16 @@ func (v focusView) page(s *model.Snapshot) []string {
 func (v focusView) values(s *model.Snapshot, fs *model.FieldStats) []string {
 	st := v.env.st
 	vw := max(12, min(40, v.w/4))
-	bw := max(8, min(40, v.w-vw-32))
-	out := []string{st.Header.Render(padRight("TOP VALUES", vw) + " " + padRight("share", bw) + " " + padLeft("p", 6) + "  " + "surprisal −log2 p")}
+	bw := max(8, min(40, v.w-vw-34))
+	out := []string{st.Header.Render("  " + padRight("TOP VALUES", vw) + " " + padRight("share", bw) + " " + padLeft("p", 6) + "  " + "surprisal −log2 p")}
 	n := float64(s.Records)
 	if n == 0 {
 		return append(out, st.Muted.Render("no records in the window"))
 	}
 	shown := 0
 	// Leave room for the sections below on a small screen.
-	top := fs.Top
-	if k := max(4, (v.h-10)/2); len(top) > k {
-		top = top[:k]
-	}
-	for _, tv := range top {
+	top := v.topShown(fs)
+	for i, tv := range top {
 		p := float64(tv.Count) / n
 		shown += tv.Count
 		label := sanitize.Pad(tv.Value, vw)
@@ -178,8 +244,15 @@ func (v focusView) values(s *model.Snapshot, fs *model.FieldStats) []string {
 			label = st.Muted.Render(padRight("(empty)", vw))
 		}
 		full, empty := barCells(p, bw)
-		out = append(out, label+" "+st.Bar.Render(full)+st.BarEmpty.Render(empty)+" "+
-			padLeft(percent(p), 6)+"  "+padLeft(bits(-math.Log2(p)), 6)+" bits")
+		row := label + " " + st.Bar.Render(full) + st.BarEmpty.Render(empty) + " " +
+			padLeft(percent(p), 6) + "  " + padLeft(bits(-math.Log2(p)), 6) + " bits"
+		if i == v.sel {
+			// ▸ marks the cursor where colour does not show.
+			row = st.Cursor.Render(padRight(ansiFit("▸ "+ansiStrip(row), v.w), v.w))
+		} else {
+			row = ansiFit("  "+row, v.w)
+		}
+		out = append(out, row)
 	}
 	if rest := s.Records - shown; rest > 0 {
 		p := float64(rest) / n
@@ -189,7 +262,7 @@ func (v focusView) values(s *model.Snapshot, fs *model.FieldStats) []string {
 		if fs.Estimate {
 			label = "rest: many values"
 		}
-		out = append(out, st.Muted.Render(padRight(label, vw))+" "+st.BarEmpty.Render(full)+st.BarEmpty.Render(empty)+" "+padLeft(percent(p), 6))
+		out = append(out, "  "+st.Muted.Render(padRight(label, vw))+" "+st.BarEmpty.Render(full)+st.BarEmpty.Render(empty)+" "+padLeft(percent(p), 6))
 	}
 	return out
 }

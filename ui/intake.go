@@ -7,6 +7,7 @@ import (
 	tea "github.com/charmbracelet/bubbletea"
 
 	"bitsift/ingest"
+	"bitsift/model"
 	"bitsift/sanitize"
 )
 
@@ -76,7 +77,7 @@ func (v *intakeView) page(f *ingest.Frame) []string {
 		kv("state", string(src.State)),
 		kv("bytes", progress(f)),
 		kv("lines", count(src.Lines)+" ("+rate(f.LinesPerSec)+" lines/s)"),
-		kv("records", count(f.Snap.Seen)+" taken, "+count(int64(f.Snap.Records))+" in the window"),
+		kv("records", recordsText(f.Snap)),
 	}
 	if in.Format != "" {
 		out = append(out, kv("format", in.Format+" (confidence "+formatFloat(in.Confidence, 2)+")"))
@@ -118,4 +119,14 @@ func (v *intakeView) page(f *ingest.Frame) []string {
 		out = append(out, "  "+e.Time.Format("15:04:05")+"  "+st.Warn.Render(padRight(sanitize.String(e.Kind), 10))+" "+sanitize.Fit(e.Detail, w-23))
 	}
 	return out
+}
+
+// recordsText counts the records taken, in the window, and left out by a
+// filter (--where, the ":" prompt).
+func recordsText(s *model.Snapshot) string {
+	t := count(s.Seen) + " taken, " + count(int64(s.Records)) + " in the window"
+	if s.Input.Filtered > 0 {
+		t += ", " + count(s.Input.Filtered) + " left out by the filter"
+	}
+	return t
 }

@@ -19,6 +19,8 @@ type KeyMap struct {
 	Rejected, Events      key.Binding
 	SaveBase, WriteScreen key.Binding
 	Shade                 key.Binding
+	PrevGiven, NextGiven  key.Binding
+	Narrow                key.Binding
 	Help, Quit            key.Binding
 }
 
@@ -60,6 +62,9 @@ func DefaultKeys() KeyMap {
 		Rejected:    b("r", "rejected lines", "r"),
 		SaveBase:    b("f", "save baseline file", "f"),
 		Shade:       b("v", "pairs: RFI or raw", "v"),
+		PrevGiven:   b("[", "focus: previous given", "["),
+		Narrow:      b(":", "narrow: where…", ":"),
+		NextGiven:   b("]", "focus: next given", "]"),
 		WriteScreen: b("o", "save screen as .md, .json", "o"),
 		Events:      b("e", "source events", "e"),
 		Help:        b("?", "keys", "?"),
@@ -77,8 +82,8 @@ func (k KeyMap) FullHelp() [][]key.Binding {
 	return [][]key.Binding{
 		{k.Up, k.Down, k.Left, k.Right, k.PageUp, k.PageDown, k.Top, k.Bottom},
 		{k.Next, k.Prev, k.Fields, k.Pairs, k.Focus, k.Drift, k.Plan, k.Intake, k.Open, k.Back},
-		{k.Rejected, k.Events, k.Help, k.Quit},
-		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause, k.Step, k.Shade},
+		{k.Rejected, k.Events, k.Narrow, k.Help, k.Quit},
+		{k.Sort, k.Reverse, k.Filter, k.Window, k.Pause, k.Step, k.Shade, k.NextGiven},
 		{k.PinBase, k.Rolling, k.SaveBase, k.WriteScreen, k.Keep, k.Drop, k.Unpin},
 	}
 }

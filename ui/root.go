@@ -48,6 +48,8 @@ type Model struct {
 	// showLines (esc closes it).
 	lines     linesView
 	showLines bool
+	// narrow is the filter prompt (":").
+	narrow narrowPrompt
 
 	w, h     int
 	gen      int // generation of the frame loop; a message of another is dropped
@@ -104,7 +106,7 @@ func New(feed Feed, opt Options) Model {
 	h.Styles.ShortDesc = e.st.HelpDesc
 	h.FullSeparator = "  "
 	m := Model{
-		opt: opt, feed: feed, e: e, help: h,
+		opt: opt, feed: feed, e: e, help: h, narrow: newNarrowPrompt(),
 		fields: newFieldsView(e), pairs: newPairsView(e), focus: newFocusView(e),
 		drift: newDriftView(e), planner: newPlannerView(e), intake: newIntakeView(e),
 		w: 80, h: 24,
@@ -183,7 +185,7 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.back, m.screen = m.screen, screenFocus
 		return m, m.fetch(true)
 	case tea.KeyMsg:
-		if msg.Type == tea.KeyRunes && len(msg.Runes) > 1 && !msg.Paste && !m.fields.capturing() {
+		if msg.Type == tea.KeyRunes && len(msg.Runes) > 1 && !msg.Paste && !m.fields.capturing() && !m.narrow.on {
 			// Keys typed faster than the screen reads them arrive
 			// together: take them one by one.
 			return m.eachRune(msg.Runes)
@@ -293,6 +295,9 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 	if m.screen == screenFields && m.fields.capturing() {
 		return m.toScreen(msg)
 	}
+	if m.narrow.on {
+		return m.narrowKey(msg)
+	}
 	m.flash = ""
 	before := m.screen
 	if m.showLines && !key.Matches(msg, k.Quit) && !key.Matches(msg, k.Help) {
@@ -353,6 +358,9 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		return m.fetchDeep(true)
 	case key.Matches(msg, k.Window):
 		return m.nextWindow()
+	case key.Matches(msg, k.Narrow):
+		m.narrow.on = true
+		return m, m.narrow.input.Focus()
 	case key.Matches(msg, k.SaveBase):
 		return m, m.saveBaseline()
 	case key.Matches(msg, k.WriteScreen):
@@ -480,6 +488,15 @@ func (m Model) nextWindow() (tea.Model, tea.Cmd) {
 	}
 	m.feed.SetWindow(next)
 	m.pendingWindow = &next
+	if f := m.e.frame; f != nil && windowGrows(cur, next) {
+		// A larger window starts from the records the window holds:
+		// those that already left it are gone, and the screen says so.
+		left := f.Source.Lines - int64(f.Snap.Records) - f.Snap.Input.Rejected
+		if left > 0 {
+			m.say("window " + windowName(next) + ": starts from the " + count(int64(f.Snap.Records)) +
+				" records held; " + count(left) + " earlier ones already left and are not counted")
+		}
+	}
 	if m.paused {
 		return m, nil
 	}
@@ -534,6 +551,9 @@ func (m Model) View() string {
 		body = m.intake.View()
 	}
 	st := m.statusLines()
+	if m.narrow.on {
+		st[1] = ansiFit(" "+m.narrow.input.View(), m.w)
+	}
 	return m.topLine() + "\n" + body + "\n" + st[0] + "\n" + st[1]
 }
 
@@ -621,4 +641,16 @@ func maxWidth(s string) int {
 		w = max(w, sanitize.Width(ansiStrip(l)))
 	}
 	return w
+}
+
+// windowGrows says whether next may hold more records than cur: the
+// records cur let go cannot come back.
+func windowGrows(cur, next model.Window) bool {
+	switch {
+	case next.Kind == model.WindowAll:
+		return cur.Kind != model.WindowAll
+	case cur.Kind == model.WindowRecords && next.Kind == model.WindowRecords:
+		return next.Records > cur.Records
+	}
+	return cur.Kind != next.Kind
 }

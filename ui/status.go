@@ -16,6 +16,11 @@ func progress(f *ingest.Frame) string {
 	if src.BytesTotal <= 0 {
 		return byteSize(src.BytesRead) + " read"
 	}
+	if !f.Ended && src.BytesRead >= src.BytesTotal && src.State != parse.StateDone {
+		// A compressed file is read ahead of its lines: all its bytes
+		// are in while lines still come, and 100% would read as done.
+		return "all " + byteSize(src.BytesTotal) + " read in, lines still coming"
+	}
 	s := byteSize(src.BytesRead) + " of " + byteSize(src.BytesTotal) + " (" +
 		percent(float64(src.BytesRead)/float64(src.BytesTotal)) + ")"
 	switch {

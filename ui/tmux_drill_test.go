@@ -135,26 +135,23 @@ func TestTmuxDrillDown(t *testing.T) {
 		}
 	}
 	// Down past the other example, the shifted fields and the timeline
-	// (which may arrive meanwhile on a loaded machine) to the first
-	// surprising record: one key at a time, until the cursor is on one.
+	// to the first surprising record.
 	tt.keys("Escape")
-	recRE := regexp.MustCompile(`bits  line ([0-9,]+)`)
-	var want string
 	var m []string
 	for range 30 {
 		tt.keys("j")
 		screen = tt.waitFor("▸")
 		for _, l := range strings.Split(screen, "\n") {
 			if strings.HasPrefix(l, "▸") {
-				want = l
+				m = regexp.MustCompile(`bits  line ([0-9,]+)`).FindStringSubmatch(l)
 			}
 		}
-		if m = recRE.FindStringSubmatch(want); m != nil {
+		if m != nil {
 			break
 		}
 	}
 	if m == nil {
-		t.Fatalf("the cursor is not on a surprising record: %q\n%s", want, screen)
+		t.Fatalf("the cursor never reached a surprising record:\n%s", screen)
 	}
 	n, _ := strconv.Atoi(strings.ReplaceAll(m[1], ",", ""))
 	tt.keys("Enter")
@@ -164,6 +161,23 @@ func TestTmuxDrillDown(t *testing.T) {
 	}
 	if l := fileLine(t, inc, n); !strings.Contains(screen, l[:40]) {
 		t.Errorf("line %d of the file (%s) is not on the screen:\n%s", n, l, screen)
+	}
+	// Focus on host (filter the Fields screen, open the field), enter on
+	// its most frequent value: every line shown has that host.
+	tt.keys("Escape", "1", "/", "h", "o", "s", "t", "Enter", "Enter")
+	screen = tt.waitFor("host  informative", "▸ qs-api-")
+	tt.keys("Enter")
+	screen = tt.waitFor("LINES BEHIND  host=qs-api-", "records in the window")
+	host := regexp.MustCompile(`LINES BEHIND  host=(qs-api-[0-9]+)`).FindStringSubmatch(screen)[1]
+	lines = whereRE.FindAllStringSubmatch(screen, -1)
+	if len(lines) < 3 {
+		t.Fatalf("the drill-down shows %d lines:\n%s", len(lines), screen)
+	}
+	for _, m := range lines {
+		n, _ := strconv.Atoi(m[1])
+		if l := fileLine(t, inc, n); !strings.Contains(l, `"host":"`+host+`"`) {
+			t.Errorf("line %d shown for host=%s is: %s", n, host, l)
+		}
 	}
 	tt.keys("Escape")
 	tt.quit()

@@ -69,7 +69,11 @@ func TestTmuxHostile(t *testing.T) {
 	}
 	// The field that carries the title sequence, up close: its values
 	// are on screen, escaped.
-	tt.keys("Escape", "1", "/", "title", "Enter", "Enter")
+	// Escape first, and wait for the help to close: an Escape and a key
+	// read together are one alt+key.
+	tt.keys("Escape")
+	tt.waitFor("REJECTED")
+	tt.keys("1", "/", "title", "Enter", "Enter")
 	screen := tt.waitFor("[3 Focus: title", "TOP VALUES")
 	check("Focus on title")
 	if !strings.Contains(screen, `\x1b]0;`+hostile.Title) {

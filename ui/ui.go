@@ -45,6 +45,8 @@ type Feed interface {
 	// SaveBaseline writes the window's profile, as a JSON report that
 	// --baseline reads, to path; off the screen's goroutine.
 	SaveBaseline(ctx context.Context, path string) error
+	// SetWhere narrows the records taken from now on (none: all again).
+	SetWhere(ctx context.Context, conds []model.Cond, text []string) error
 }
 
 // Options tune the screen. The zero value of a field means its default.
