@@ -131,9 +131,9 @@ func TestTmuxSuspendResumeHangupQuit(t *testing.T) {
 		if m := paneModes(t, name); !strings.HasPrefix(m, "alt=0 mouse=000 cursor=1") {
 			t.Errorf("after ctrl+z the terminal is not restored: %s", m)
 		}
-		// The quotes keep the answers out of the command line itself.
-		tt.keys(`stty -a | grep -q -e ' -icanon' -e ' -echo ' && echo MODE=R''AW || echo MODE=CO''OKED`, "Enter")
-		if screen := tt.waitFor("MODE="); !strings.Contains(screen, "MODE=COOKED") {
+		// $((40+2)) keeps the answers out of the command line itself.
+		tt.keys(`stty -a | grep -q -e ' -icanon' -e ' -echo ' && echo RAW-$((40+2)) || echo COOKED-$((40+2))`, "Enter")
+		if screen := tt.waitFor("-42"); !strings.Contains(screen, "COOKED-42") {
 			t.Errorf("after ctrl+z the terminal is still raw:\n%s", screen)
 		}
 		tt.keys("fg", "Enter")
