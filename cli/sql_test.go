@@ -334,13 +334,14 @@ func sameTop(a, b []topValue) bool {
 	return true
 }
 
-// sqlLines is how many demo lines the database tests load: 20,000 by
-// default, BITSIFT_SQL_LINES to check more (the issue's check is 200,000).
+// sqlLines is how many demo lines the database tests load: 10,000 by
+// default (the suite stays fast), BITSIFT_SQL_LINES to check more (the
+// issue's check is 200,000).
 func sqlLines() int64 {
 	if n, err := strconv.ParseInt(os.Getenv("BITSIFT_SQL_LINES"), 10, 64); err == nil && n > 0 {
 		return n
 	}
-	return 20000
+	return 10000
 }
 
 // TestSQLMatchesReport: the demo's lines loaded into a real PostgreSQL and
@@ -363,9 +364,39 @@ func TestSQLMatchesReport(t *testing.T) {
 		name  string
 		start func(testing.TB) string
 		load  func(testing.TB, string, []demoRow)
+		odd   func(testing.TB, string) // a table and column with quotes in their names
 	}{
-		{"postgres", func(t testing.TB) string { return dbtest.Postgres(t, pgPing).DSN }, loadPostgres},
-		{"clickhouse", func(t testing.TB) string { return dbtest.ClickHouse(t, chPing).DSN }, loadClickHouse},
+		{"postgres", func(t testing.TB) string { return dbtest.Postgres(t, pgPing).DSN }, loadPostgres, func(t testing.TB, dsn string) {
+			c, err := pgx.Connect(context.Background(), dsn)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer c.Close(context.Background())
+			if _, err := c.Exec(context.Background(), `CREATE TABLE "odd ""t""" ("x""y z" text, "n" text); INSERT INTO "odd ""t""" VALUES ('a', '1'), ('b', NULL), (NULL, '1')`); err != nil {
+				t.Fatal(err)
+			}
+		}},
+		{"clickhouse", func(t testing.TB) string { return dbtest.ClickHouse(t, chPing).DSN }, loadClickHouse, func(t testing.TB, dsn string) {
+			o, _ := clickhouse.ParseDSN(dsn)
+			c, err := clickhouse.Open(o)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer c.Close()
+			ctx := context.Background()
+			if err := c.Exec(ctx, "CREATE TABLE `odd \\`t\\`` (`x\\`y z` Nullable(String), n Nullable(String)) ENGINE = Memory"); err != nil {
+				t.Fatal(err)
+			}
+			// Inline VALUES over the native protocol make 18.16 wait for
+			// data blocks, and the batch API cannot parse quoted names:
+			// INSERT ... SELECT.
+			n := "CAST(NULL AS Nullable(String))"
+			q := "INSERT INTO `odd \\`t\\`` SELECT toNullable('a'), toNullable('1') UNION ALL SELECT toNullable('b'), " + n +
+				" UNION ALL SELECT " + n + ", toNullable('1')"
+			if err := c.Exec(ctx, q); err != nil {
+				t.Fatal(err)
+			}
+		}},
 	} {
 		t.Run(eng.name, func(t *testing.T) {
 			dsn := eng.start(t)
@@ -387,6 +418,9 @@ func TestSQLMatchesReport(t *testing.T) {
 			// apart from 06:00:00, so [06:00:02, 06:00:04) holds lines
 			// 4,001–8,000; the condition is counted here from the rows.
 			nErr := 0
+			if len(rows) < 8000 {
+				return
+			}
 			for _, r := range rows[4000:8000] {
 				if r["level"] == "error" {
 					nErr++
@@ -399,6 +433,24 @@ func TestSQLMatchesReport(t *testing.T) {
 			}
 			if r := figures(t, got); r.Records != nErr || nErr == 0 {
 				t.Errorf("--since/--until/--where: %d records, want %d", r.Records, nErr)
+			}
+			// Quotes in names; a NULL is a value of its own: x has
+			// a, b, absent (log2 3 bits), n has 1, 1, absent.
+			eng.odd(t, dsn)
+			table := `odd "t"`
+			if eng.name == "clickhouse" {
+				table = "odd `t`"
+			}
+			code, got, errs = run(t, "", "sql", "--engine", eng.name, "--dsn", dsn, "--table", table, "-o", "json")
+			if code != 0 {
+				t.Fatalf("odd names: exit %d: %s", code, errs)
+			}
+			odd := figures(t, got)
+			for _, f := range odd.Fields {
+				want := map[string]float64{"x\"y z": math.Log2(3), "x`y z": math.Log2(3), "n": math.Log2(3) - 2.0/3}[f.Name]
+				if want == 0 || math.Abs(f.Entropy-want) > 1e-9 {
+					t.Errorf("odd names: field %q, H %v, want %v", f.Name, f.Entropy, want)
+				}
 			}
 		})
 	}

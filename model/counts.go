@@ -208,6 +208,12 @@ func (m *Model) summarise(f *field, k int) *Summary {
 // field with distinct values over present records, for callers that
 // classify fields from counts (a database's GROUP BY) before asking for
 // pair tables: an identifier gets a Summary and no pairs.
+//
+// Rows with no order (a table) cannot replay the model's hysteresis, which
+// keeps a field of a stream an identifier down to identLeave once it has
+// entered at identEnter: on a few thousand records a field whose share of
+// distinct values ends between the two may be classified either way by a
+// log report, depending on the order its values came in.
 func IsIdentifier(distinct, present int64) bool {
 	return present >= identMinPresent && float64(distinct) >= identEnter*float64(present)
 }

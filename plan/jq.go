@@ -98,7 +98,8 @@ func WriteJQRestore(w io.Writer, p *Plan) error {
 	var b strings.Builder
 	p.comment(&b)
 	b.WriteString("# Restore: rebuilds what the drop program (--emit jq) deleted.\n" +
-		"# Use: jq -c -f THIS_FILE < dropped.jsonl > restored.jsonl\n")
+		"# Use: jq -c -n -f THIS_FILE < dropped.jsonl > restored.jsonl\n" +
+		"# (-n: the tables are read once, then each input line is restored)\n")
 	rs, parents := restorables(p, p.Measured.Paths)
 	rebuilt := map[string]bool{}
 	for _, r := range rs {
@@ -139,13 +140,18 @@ def bs_order_at($p; $keys):
 		}
 		b.WriteString("]);\n")
 	}
-	b.WriteString(".\n")
+	for i, r := range rs {
+		if r.from != nil {
+			fmt.Fprintf(&b, "bs_t%d as $t%[1]d |\n", i)
+		}
+	}
+	b.WriteString("inputs\n")
 	for i, r := range rs {
 		if r.from == nil {
 			fmt.Fprintf(&b, "| bs_set(%s; %s)\n", jqArray(r.path), lit(r.f.Table.Rows[0].Value, r.f.Table.JSON))
 			continue
 		}
-		fmt.Fprintf(&b, "| bs_t%d[bs_key(%s)] as $r | if $r and $r[2] then bs_set(%s; $r[3]) else . end\n",
+		fmt.Fprintf(&b, "| $t%d[bs_key(%s)] as $r | if $r and $r[2] then bs_set(%s; $r[3]) else . end\n",
 			i, jqArray(r.from), jqArray(r.path))
 	}
 	for _, pp := range parents {

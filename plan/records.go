@@ -4,6 +4,7 @@ import (
 	"sort"
 	"strings"
 
+	"bitsift/companion"
 	"bitsift/model"
 )
 
@@ -75,6 +76,11 @@ type ClassTerm struct {
 	Path  []string // JSON key path, nil for other input
 	Value TableValue
 	JSON  bool // Value.Text is JSON text
+	// Template, when set, is a message template (the companion's text,
+	// masks such as <*> and <num> for the parts that vary): the term holds
+	// for a message of Field that the template's pattern matches, and
+	// Value is unused.
+	Template string
 }
 
 // Reduction is one class of routine records and what reducing it costs
@@ -129,6 +135,7 @@ type recordHints struct {
 	timeField   string
 	idField     string // an identifier, for hash-based sampling
 	rules       [][2]string
+	templates   []string // fields with a template companion
 	broken      []model.BrokenRule
 	surprising  []map[string]string
 }
@@ -137,6 +144,27 @@ type recordHints struct {
 // the record reductions.
 func hints(all, s *model.Snapshot) recordHints {
 	h := recordHints{timeField: s.Input.TimeField}
+	for i := range all.Fields {
+		f := &all.Fields[i]
+		if f.Synthetic != nil && strings.HasSuffix(f.Name, companion.TemplateSuffix) {
+			h.templates = append(h.templates, f.Synthetic.Source)
+		}
+	}
+	// A message is no identifier for a duplicate, however rarely it
+	// repeats: it is what repeats.
+	message := func(f *model.FieldStats) bool {
+		for _, t := range h.templates {
+			if t == f.Name {
+				return true
+			}
+		}
+		for _, v := range f.Top {
+			if strings.Contains(v.Value, " ") {
+				return true
+			}
+		}
+		return false
+	}
 	type cand struct {
 		name string
 		h    float64
@@ -147,6 +175,7 @@ func hints(all, s *model.Snapshot) recordHints {
 		switch {
 		case f.Name == h.timeField:
 			h.ignore = append(h.ignore, f.Name)
+		case f.Kind == model.Identifier && message(f):
 		case f.Kind == model.Identifier:
 			h.ignore = append(h.ignore, f.Name)
 			if h.idField == "" {
@@ -193,6 +222,8 @@ func describe(terms []ClassTerm) string {
 	parts := make([]string, len(terms))
 	for i, t := range terms {
 		switch {
+		case t.Template != "":
+			parts[i] = t.Field + companion.TemplateSuffix + "=" + string(appendJSONString(nil, t.Template))
 		case t.Value.Absent:
 			parts[i] = t.Field + " absent"
 		case t.JSON:

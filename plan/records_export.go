@@ -66,6 +66,14 @@ func (r *Reduction) Condition() string {
 	parts := make([]string, len(r.Terms))
 	for i, t := range r.Terms {
 		path, ok1 := ottlPath(t)
+		if t.Template != "" {
+			re, ok2 := templateRegexp(t.Template)
+			if !ok1 || !ok2 {
+				return ""
+			}
+			parts[i] = `IsMatch(` + path + `, "` + re + `")`
+			continue
+		}
 		lit, ok2 := ottlLiteral(t.Value, t.JSON)
 		if !ok1 || !ok2 {
 			return ""
@@ -183,7 +191,11 @@ func jqCond(r *Reduction) string {
 		if path == nil {
 			path = []string{t.Field}
 		}
-		if t.Value.Absent {
+		if re, ok := templateRegexp(t.Template); t.Template != "" && ok {
+			parts[i] = "((bs_at(" + jqArray(path) + ") | type == \"string\") and (bs_at(" + jqArray(path) + ") | test(\"" + re + "\")))"
+		} else if t.Template != "" {
+			parts[i] = "false"
+		} else if t.Value.Absent {
 			parts[i] = "(bs_has(" + jqArray(path) + ") | not)"
 		} else {
 			parts[i] = "(bs_has(" + jqArray(path) + ") and bs_at(" + jqArray(path) + ") == " + jqValue(t.Value, t.JSON) + ")"
@@ -255,4 +267,53 @@ foreach (inputs, null) as $r ({n: {}, groups: {}, minute: null, seen: 0, emit: [
 `, collapse != nil, minute, dropKey)
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// maskRE finds the masks in a template: <*>, <num>, <ip>, ... and the
+// "<…>" that ends a cut one.
+var maskRE = regexp.MustCompile(`<[a-z*…]+>`)
+
+// templateRegexp writes a template as a regular expression that both RE2
+// (the collector's IsMatch, from memory) and Oniguruma (jq's test) read
+// alike: anchored, a mask matches (part of) one word and the "<…>" of a
+// cut template the rest, spaces match runs of spaces,
+// and every other character stands for itself, a special one inside
+// brackets ([.]) so that no backslash is needed (OTTL's string escapes
+// are not certain). ok is false for a template with a character that
+// cannot be written so (a backslash, a quote, ^ or ], a control
+// character).
+func templateRegexp(t string) (string, bool) {
+	var b strings.Builder
+	b.WriteString("^")
+	rest := t
+	for rest != "" {
+		loc := maskRE.FindStringIndex(rest)
+		lit := rest
+		if loc != nil {
+			lit = rest[:loc[0]]
+		}
+		for _, r := range lit {
+			switch {
+			case r == '\\' || r == '"' || r == '^' || r == ']' || r < 0x20 || r == 0x7f:
+				return "", false
+			case r == ' ':
+				b.WriteString(" +")
+			case strings.ContainsRune(".+*?()[{}|$", r):
+				b.WriteString("[" + string(r) + "]")
+			default:
+				b.WriteRune(r)
+			}
+		}
+		if loc == nil {
+			break
+		}
+		if rest[loc[0]:loc[1]] == "<…>" { // the words past a cut template
+			b.WriteString(".*")
+		} else { // a mask stands for (part of) one word
+			b.WriteString("[^ ]+")
+		}
+		rest = rest[loc[1]:]
+	}
+	b.WriteString("$")
+	return b.String(), true
 }

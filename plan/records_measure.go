@@ -8,6 +8,8 @@ import (
 	"sort"
 	"strings"
 	"time"
+
+	"bitsift/companion"
 )
 
 // classes gathers, record by record of the measured sample, what the
@@ -26,10 +28,15 @@ type classes struct {
 	dup    []uint64
 	bucket []int64
 	ignore map[string]bool
+	// tmpl are the template companions, by their source field: the same
+	// engine ingest runs (package companion), on the measured messages.
+	tmpl      map[string]*companion.Templates
+	synthetic map[int]bool // fields made here (templates): not counted as information
 }
 
 func newClasses(p *Plan, json bool) *classes {
-	c := &classes{h: p.hints, json: json, fidx: map[string]int{}, ignore: map[string]bool{}}
+	c := &classes{h: p.hints, json: json, fidx: map[string]int{}, ignore: map[string]bool{},
+		tmpl: map[string]*companion.Templates{}, synthetic: map[int]bool{}}
 	for _, f := range p.hints.ignore {
 		c.ignore[f] = true
 	}
@@ -41,6 +48,18 @@ func newClasses(p *Plan, json bool) *classes {
 			c.texts = append(c.texts, nil)
 		}
 	}
+	for _, src := range p.hints.templates {
+		if _, ok := c.fidx[src]; !ok {
+			continue
+		}
+		t := companion.NewTemplates(src)
+		c.tmpl[src] = t
+		c.synthetic[len(c.fields)] = true
+		c.fidx[t.Name()] = len(c.fields)
+		c.fields = append(c.fields, t.Name())
+		c.ids = append(c.ids, map[string]uint32{})
+		c.texts = append(c.texts, nil)
+	}
 	return c
 }
 
@@ -49,6 +68,19 @@ func newClasses(p *Plan, json bool) *classes {
 func (c *classes) add(rec map[string]string, n int) {
 	row := make([]uint32, len(c.fields))
 	var dup uint64
+	for src, t := range c.tmpl {
+		if v, ok := rec[src]; ok {
+			i := c.fidx[t.Name()]
+			id := string(t.Value([]byte(cellText(TableValue{Text: v}, c.json))))
+			n, ok := c.ids[i][id]
+			if !ok {
+				c.texts[i] = append(c.texts[i], id)
+				n = uint32(len(c.texts[i]))
+				c.ids[i][id] = n
+			}
+			row[i] = n
+		}
+	}
 	for k, v := range rec {
 		i, ok := c.fidx[k]
 		if !ok {
@@ -193,6 +225,9 @@ func (c *classes) candidates() []*candidate {
 			cf = append(cf, i)
 		}
 	}
+	for i := range c.synthetic {
+		cf = append(cf, i)
+	}
 	single := map[[2]int][]int{}
 	for r, row := range c.rows {
 		for _, f := range cf {
@@ -253,6 +288,9 @@ func (c *classes) judge(cands []*candidate) {
 				break
 			}
 			h := entropyMM(counts, k)
+			if c.synthetic[f] {
+				continue
+			}
 			cd.bits += h
 			if !def[f] {
 				in += h
@@ -326,6 +364,20 @@ func (c *classes) reductions(before []byte, size func([]byte) float64, idBits fl
 		red := Reduction{Action: SampleRecords, KeepOneIn: KeepOneIn, Ratio: cd.ratio}
 		for _, t := range cd.terms {
 			term := ClassTerm{Field: c.fields[t[0]], JSON: c.json}
+			if c.synthetic[t[0]] {
+				src := strings.TrimSuffix(term.Field, companion.TemplateSuffix)
+				id, _ := companion.ParseID(c.texts[t[0]][t[1]-1])
+				text, ok := c.tmpl[src].Text(id)
+				if t[1] == 0 || !ok {
+					continue
+				}
+				term = ClassTerm{Field: src, Template: text}
+				if ps := paths[src]; len(ps) == 1 {
+					term.Path = ps[0]
+				}
+				red.Terms = append(red.Terms, term)
+				continue
+			}
 			if t[1] == 0 {
 				term.Value.Absent = true
 			} else {

@@ -2,16 +2,22 @@ package plan
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os/exec"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
 	"go.yaml.in/yaml/v3"
 
 	"bitsift/demo"
+	"bitsift/ingest"
+	"bitsift/internal/datasets"
+	"bitsift/model"
 )
 
 // demoLines returns n lines of the demo stream (package demo: its routes,
@@ -140,13 +146,15 @@ func matches(t *testing.T, line []byte, terms []ClassTerm) bool {
 // commit 087ed98cf7b2, sections Paths, Literals, Boolean Expressions,
 // Booleans): a Path of a lowercase identifier with ["key"] string keys,
 // the operator ==, and a Literal (a string in double quotes, an int, a
-// float of digits with a dot, true, false, nil), Booleans joined by "and".
+// float of digits with a dot, true, false, nil), or a Converter returning
+// a boolean (IsMatch, whose name and arguments are from memory of the
+// ottlfuncs documentation), Booleans joined by "and".
 // That a string literal may hold any character but a double quote and a
 // backslash without escapes is from memory.
 var (
 	ottlPathRE = `[a-z][a-z_]*(\["[^"\\]*"\])+`
 	ottlLitRE  = `("[^"\\]*"|[+-]?[0-9]+|[+-]?[0-9]*\.[0-9]+|true|false|nil)`
-	ottlCompRE = ottlPathRE + ` == ` + ottlLitRE
+	ottlCompRE = `(` + ottlPathRE + ` == ` + ottlLitRE + `|IsMatch\(` + ottlPathRE + `, "[^"\\]*"\))`
 	ottlCondRE = regexp.MustCompile(`^` + ottlCompRE + `( and ` + ottlCompRE + `)*$`)
 )
 
@@ -364,4 +372,66 @@ func TestJQRecords(t *testing.T) {
 		t.Errorf("collapsed to %d records counting %d (want 6 counting 6000)", len(dout), total)
 	}
 	t.Logf("%s: keep 1 in %.3g, saved %.1f B raw per record", dup.Class, dup.KeepOneIn, dup.Saved.Raw)
+}
+
+// TestTemplateClasses: on auth.log (elastic/examples, Apache-2.0, see
+// ../shared/datasets/README.md) routine classes are message templates of
+// the template companion (package companion), and the pattern each is
+// exported with picks, run by jq's own regular expressions, the records
+// of that class: their count over the file is the class's share.
+func TestTemplateClasses(t *testing.T) {
+	jq := jqTool(t)
+	path := datasets.Path(t, "auth.log.gz")
+	in, err := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	smp := in.KeepRaw(DefaultBatch)
+	if err := in.ReadFiles(context.Background(), []string{path}); err != nil {
+		t.Fatal(err)
+	}
+	snap := in.Snapshot(model.SnapshotOptions{})
+	smp.Keep(snap.Records)
+	p, err := Make(snap, smp, Options{RecordTimes: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var msgs bytes.Buffer
+	smp.Each(func(line []byte) {
+		rec, _ := json.Marshal(map[string]string{"msg": msgOf(line)})
+		msgs.Write(append(rec, '\n'))
+	})
+	n := 0
+	for _, r := range p.Reductions {
+		if len(r.Terms) != 1 || r.Terms[0].Template == "" {
+			continue
+		}
+		n++
+		cond := r.Condition()
+		if !ottlCondRE.MatchString(cond) {
+			t.Errorf("condition outside the grammar: %s", cond)
+		}
+		re, _ := templateRegexp(r.Terms[0].Template)
+		out := runJQ(t, jq, `[inputs | select(.msg | test("`+re+`"))] | length`, msgs.Bytes(), "-n")
+		got, _ := strconv.Atoi(strings.TrimSpace(string(out)))
+		want := r.ShareRecords * float64(p.Measured.Records)
+		if math.Abs(float64(got)-want) > 0.02*want+1 {
+			t.Errorf("%s: jq's pattern picks %d records, the class holds %.0f", r.Class, got, want)
+		}
+		t.Logf("%s: %.1f%% of records; jq picks %d", r.Class, 100*r.ShareRecords, got)
+	}
+	if n == 0 {
+		t.Errorf("no template class among %+v", p.Reductions)
+	}
+}
+
+// msgOf is the message of an auth.log line: what follows "]: " or the
+// program's ": " (RFC 3164's MSG part after the TAG, from memory).
+func msgOf(line []byte) string {
+	s := string(line)
+	if i := strings.Index(s, "]: "); i >= 0 {
+		return s[i+3:]
+	}
+	parts := strings.SplitN(s, ": ", 2)
+	return strings.TrimSpace(parts[len(parts)-1])
 }

@@ -142,7 +142,7 @@ func TestJQRoundTrip(t *testing.T) {
 			in := append(bytes.Join(ls, []byte("\n")), '\n')
 			orig := runJQ(t, jq, ".", in)
 			dropped := runJQ(t, jq, drop.String(), in)
-			back := runJQ(t, jq, restore.String(), dropped)
+			back := runJQ(t, jq, restore.String(), dropped, "-n")
 			if bytes.Equal(dropped, orig) {
 				t.Fatal("the drop program deleted nothing")
 			}
