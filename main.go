@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"runtime/debug"
 	"syscall"
 	"time"
 
@@ -20,7 +21,19 @@ import (
 // no writer, a terminal) cannot see its context.
 const stopWithin = time.Second
 
+// gcPercent is the heap growth, in percent of the live heap, at which the
+// collector runs (Go's default is 100). bitsift's memory is mostly large
+// pointer-free arrays (value counts, id columns, pair tables), which the
+// collector marks at almost no cost, so collecting sooner costs little CPU
+// and keeps the peak near the live heap: on 1M demo lines, report -o json
+// peaked at 203 MB RSS instead of 243 MB, CPU time unchanged within the
+// noise (medians of 3, issue 13). GOGC in the environment wins.
+const gcPercent = 25
+
 func main() {
+	if os.Getenv("GOGC") == "" {
+		debug.SetGCPercent(gcPercent)
+	}
 	// A closed pipe (bitsift report | head) then shows as EPIPE on write,
 	// which the commands treat as a quiet end, instead of killing the
 	// process.
