@@ -326,23 +326,46 @@ func (v plannerView) measuredText() string {
 	}
 	mm := m.Measured
 	s := mm.Saved()
-	t := "measured on " + count(int64(mm.Records)) + " records: saves " + formatFloat(s.Raw, 1) + " of " +
-		formatFloat(mm.Before.Raw, 1) + " B raw (" + percent(share(s.Raw, mm.Before.Raw)) + "), " +
-		formatFloat(s.Compressed, 1) + " of " + formatFloat(mm.Before.Compressed, 1) + " B zstd (" +
-		percent(share(s.Compressed, mm.Before.Compressed)) + ")"
+	raw, zst := percent(share(s.Raw, mm.Before.Raw)), percent(share(s.Compressed, mm.Before.Compressed))
+	perDay := ""
 	if d, ok := m.SavedPerDay(); ok {
-		t += " · " + plan.Bytes(d.Compressed) + "/day zstd"
+		perDay = ", " + plan.Bytes(d.Compressed) + "/day after zstd"
 	}
-	if m.Measured.Mismatches > 0 {
-		t += st.Bad.Render(" · " + count(int64(m.Measured.Mismatches)) + " mismatches")
+	var tail, styledTail string
+	if mm.Mismatches > 0 {
+		tail = " · " + count(int64(mm.Mismatches)) + " mismatches"
+		styledTail = st.Bad.Render(tail)
 	}
+	again, short := "", ""
 	switch {
 	case v.measVer != v.ver:
-		t = st.Muted.Render(t + " · before the last pin, measuring again…")
+		again, short = " · before the last pin, measuring again…", " · old pins, measuring…"
 	case v.measuring:
-		t = st.Muted.Render(t + " · measuring again…")
+		again, short = " · measuring again…", " · measuring…"
 	}
-	return t
+	// The longest wording that fits the width: the saving figures stay
+	// whole at 80 columns, the byte counts go first.
+	forms := []string{
+		"measured on " + count(int64(mm.Records)) + " records: saves " + formatFloat(s.Raw, 1) + " of " +
+			formatFloat(mm.Before.Raw, 1) + " B raw (" + raw + "), " + formatFloat(s.Compressed, 1) + " of " +
+			formatFloat(mm.Before.Compressed, 1) + " B zstd (" + zst + ")" + perDay,
+		"measured on " + count(int64(mm.Records)) + " records: saves " + raw + " raw, " + zst + " zstd" + perDay,
+		"measured, " + count(int64(mm.Records)) + " rec: saves " + raw + " raw, " + zst + " zstd" + perDay,
+	}
+	t := forms[len(forms)-1]
+	for _, f := range forms {
+		if sanitize.Width(f+tail+short) <= v.w {
+			t = f
+			if sanitize.Width(f+tail+again) > v.w {
+				again = short
+			}
+			break
+		}
+	}
+	if again != "" {
+		return st.Muted.Render(t + tail + again)
+	}
+	return t + styledTail
 }
 
 func share(part, whole float64) float64 {
