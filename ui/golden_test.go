@@ -69,8 +69,8 @@ func TestGolden(t *testing.T) {
 	}{
 		{"fields", nil, false},
 		{"fields-sorted-filtered", []string{"s", "S", "/", "o", "u", "enter"}, false},
-		{"pairs", []string{"2", "down", "down", "l"}, false},
-		{"focus", []string{"2", "down", "down", "down", "down", "l", "l", "l", "enter"}, false},
+		{"pairs", []string{"2", "down", "down", "down", "down", "down", "l", "l"}, false},
+		{"focus", []string{"2", "down", "down", "l", "l", "l", "l", "l", "3"}, false},
 		{"focus-best", []string{"/", "upstream", "enter", "enter"}, false},
 		{"drift", []string{"4"}, false},
 		{"drift-surprising", []string{"4", "G"}, false},

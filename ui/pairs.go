@@ -46,6 +46,9 @@ type pairsView struct {
 	// agreement is taken off (a many-valued column explains a lot by
 	// chance alone: raw, H(account | latency_ms) looks predictive).
 	raw bool
+	// pick is the value pair under the breakdown's cursor ([ ]); enter
+	// opens the lines behind it.
+	pick int
 }
 
 // newPairsView starts with the cursor off the diagonal.
@@ -116,7 +119,7 @@ func (v pairsView) clamp() pairsView {
 func (v pairsView) Update(msg tea.Msg) (pairsView, tea.Cmd) {
 	k := v.env.keys
 	if s, ok := scrollOf(k, msg, len(v.idx)); ok {
-		v.moved = true
+		v.moved, v.pick = true, 0
 		v.r = s.apply(v.r, len(v.idx))
 		return v.clamp(), nil
 	}
@@ -127,13 +130,22 @@ func (v pairsView) Update(msg tea.Msg) (pairsView, tea.Cmd) {
 	switch {
 	case key.Matches(km, k.Left):
 		v.c--
-		v.moved = true
+		v.moved, v.pick = true, 0
 	case key.Matches(km, k.Right):
 		v.c++
-		v.moved = true
+		v.moved, v.pick = true, 0
+	case key.Matches(km, k.NextGiven):
+		v.pick++
+		if f := v.env.frame; f != nil {
+			v.pick = min(v.pick, max(0, len(v.cellPairs(f.Snap))-1))
+		}
+	case key.Matches(km, k.PrevGiven):
+		v.pick = max(0, v.pick-1)
 	case key.Matches(km, k.Open):
-		if v.selR != "" && v.selR != v.selC {
-			return v, open(v.selR, v.selC)
+		if f := v.env.frame; f != nil {
+			if title, conds, ok := v.pickedConds(f.Snap); ok {
+				return v, openLines(title, conds)
+			}
 		}
 	case key.Matches(km, k.Shade):
 		v.raw = !v.raw
@@ -279,6 +291,8 @@ func (v pairsView) panel(s *model.Snapshot) []string {
 	out = append(out, padRight("row left", 12)+padLeft(percent(share), 6)+" of H(row)")
 	rfi := s.RFI(ri, ci)
 	out = append(out, padRight("RFI", 12)+padLeft(formatFloat(rfi, 3), 6)+st.Muted.Render(" reliably explained"), "")
+	out = append(out, v.breakdown(s, pw)...)
+	out = append(out, "")
 	bw := max(8, min(pw-1, 48))
 	a, b := 0, 0
 	if hj > 0 {
@@ -295,7 +309,7 @@ func (v pairsView) panel(s *model.Snapshot) []string {
 		st.Split[0].Render(strings.Repeat("█", a))+st.Split[1].Render(strings.Repeat("▓", b))+st.Split[2].Render(strings.Repeat("░", c)),
 		st.Split[0].Render("█")+" row|col "+st.Split[1].Render("▓")+" I "+st.Split[2].Render("░")+" col|row",
 		"",
-		st.Muted.Render(ansiFit("enter: "+sanitize.String(rn)+" by "+sanitize.String(cn), pw-1)),
+		st.Muted.Render(ansiFit("3: "+sanitize.String(rn)+" given "+sanitize.String(cn)+" up close", pw-1)),
 	)
 	return out
 }

@@ -148,10 +148,15 @@ func (m Model) tick() tea.Cmd {
 const topValues = 16
 
 func (m Model) snapshotOptions() model.SnapshotOptions {
-	return model.SnapshotOptions{
+	o := model.SnapshotOptions{
 		TopValues: topValues, Detail: m.focus.field, DetailGiven: m.focus.given,
 		DetailRows: 12, DetailTop: 6,
 	}
+	if p := m.pairs; m.screen == screenPairs && p.selR != "" && p.selR != p.selC {
+		// The Pairs screen breaks the cell under the cursor down by value.
+		o.Detail, o.DetailGiven = p.selR, p.selC
+	}
+	return o
 }
 
 // Update routes a message: frames and ticks here, keys and the mouse to
@@ -324,6 +329,9 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m = m.show(screenFields)
 	case key.Matches(msg, k.Pairs):
 		m = m.show(screenPairs)
+	case key.Matches(msg, k.Focus) && m.screen == screenPairs && m.pairs.selR != m.pairs.selC:
+		// From a cell: its row field given its column field, up close.
+		return m, open(m.pairs.selR, m.pairs.selC)
 	case key.Matches(msg, k.Focus):
 		if m.focus.field == "" {
 			m.focus = m.focus.show(m.fields.selected(), "")
@@ -454,7 +462,11 @@ func (m Model) toScreen(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case screenFields:
 		m.fields, cmd = m.fields.Update(msg)
 	case screenPairs:
+		r, c := m.pairs.selR, m.pairs.selC
 		m.pairs, cmd = m.pairs.Update(msg)
+		if cmd == nil && (m.pairs.selR != r || m.pairs.selC != c) {
+			cmd = m.fetch(true) // the breakdown of the new cell
+		}
 	case screenFocus:
 		before := m.focus.field
 		m.focus, cmd = m.focus.Update(msg)
