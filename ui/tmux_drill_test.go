@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"bitsift/demo"
 )
@@ -179,8 +180,58 @@ func TestTmuxDrillDown(t *testing.T) {
 			t.Errorf("line %d shown for host=%s is: %s", n, host, l)
 		}
 	}
+	// Pairs: the cell upstream × route, enter on its most frequent value
+	// pair: every line shown has both values.
+	tt.keys("Escape", "2")
+	tt.waitFor("[2 Pairs]", "ROW ")
+	pairsCell(t, tt, "ROW ", "upstream", "j")
+	tt.keys("h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h", "h")
+	pairsCell(t, tt, "COL ", "route", "l")
+	tt.waitFor("VALUE PAIRS", "▸ ")
+	tt.keys("Enter")
+	screen = tt.waitFor("LINES BEHIND  upstream=", "records in the window")
+	pair := regexp.MustCompile(`LINES BEHIND  upstream=(\S+) · route=(\S+)`).FindStringSubmatch(screen)
+	if pair == nil {
+		t.Fatalf("no value pair in the title:\n%s", screen)
+	}
+	lines = whereRE.FindAllStringSubmatch(screen, -1)
+	if len(lines) < 3 {
+		t.Fatalf("the drill-down shows %d lines:\n%s", len(lines), screen)
+	}
+	for _, m := range lines {
+		n, _ := strconv.Atoi(m[1])
+		l := fileLine(t, inc, n)
+		if !strings.Contains(l, `"upstream":"`+pair[1]+`"`) || !strings.Contains(l, `"route":"`+pair[2]+`"`) {
+			t.Errorf("line %d shown for upstream=%s · route=%s is: %s", n, pair[1], pair[2], l)
+		}
+	}
 	tt.keys("Escape")
 	tt.quit()
+}
+
+// pairsCell moves the Pairs cursor with key until the ROW (or COL) line
+// names field.
+func pairsCell(t *testing.T, tt *tmuxTerm, which, field, key string) {
+	t.Helper()
+	re := regexp.MustCompile(which + `[a-t] ` + regexp.QuoteMeta(field) + `\b`)
+	at := regexp.MustCompile(which + `[a-t] `)
+	for range 25 {
+		screen := tt.capture()
+		if re.MatchString(screen) {
+			return
+		}
+		before := at.FindString(screen)
+		tt.keys(key)
+		// Wait for the screen to take the key before the next: a loaded
+		// machine draws late, and keys sent ahead would overshoot.
+		for deadline := time.Now().Add(10 * time.Second); time.Now().Before(deadline); {
+			if at.FindString(tt.capture()) != before {
+				break
+			}
+			time.Sleep(20 * time.Millisecond)
+		}
+	}
+	t.Fatalf("the Pairs cursor never reached %s%s:\n%s", which, field, tt.capture())
 }
 
 // runBinary runs the built binary and returns its standard output.
