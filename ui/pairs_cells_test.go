@@ -1,9 +1,11 @@
 package ui
 
 import (
+	"strings"
 	"testing"
 
 	tea "github.com/charmbracelet/bubbletea"
+	"github.com/charmbracelet/x/ansi"
 )
 
 // TestPairsCellOpensLines: enter on a heat-map cell opens the lines behind
@@ -42,5 +44,19 @@ func TestPairsCellOpensLines(t *testing.T) {
 	m = press(t, m, "3")
 	if m.screen != screenFocus || m.focus.field != "upstream" || m.focus.given != "route" {
 		t.Errorf("3 on the cell shows screen %d, %s given %s", m.screen, m.focus.field, m.focus.given)
+	}
+}
+
+// TestHelpListsPairKeys: at 80×24 the help overlay lists the keys of the
+// Pairs breakdown whole, inside the screen.
+func TestHelpListsPairKeys(t *testing.T) {
+	m, _ := fixtureModel(t, 80, 24)
+	m = press(t, m, "?")
+	got := ansi.Strip(m.View())
+	checkSize(t, got, 80, 24)
+	for _, want := range []string{"[ ]   given · value pair", "enter     open field · lines", "3         one field · cell"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("help at 80×24 lacks %q:\n%s", want, got)
+		}
 	}
 }
