@@ -19,6 +19,7 @@ import (
 // lists the six partitions with their offsets and lag, while a producer
 // keeps writing the demo stream into them.
 func TestTmuxWatchTopic(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}

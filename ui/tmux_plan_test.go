@@ -12,6 +12,7 @@ import (
 // one whole (it shows kept), u unpins it; x on a derived field shows it
 // dropped; both cautions stay on the screen.
 func TestTmuxPlanRecords(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}

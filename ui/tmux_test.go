@@ -2,12 +2,14 @@ package ui
 
 import (
 	"bufio"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
@@ -96,22 +98,51 @@ func (tt *tmuxTerm) quit() {
 	}
 }
 
-// buildBinary builds bitsift into a temporary folder.
+// buildBinary builds bitsift once per test run, into a folder TestMain
+// removes: linking costs seconds of CPU, and every tmux test needs the same
+// binary.
 func buildBinary(t *testing.T) string {
 	t.Helper()
 	if _, err := exec.LookPath("tmux"); err != nil {
 		t.Skip("tmux is not installed (.ci/run installs it); the end-to-end screen test needs a real terminal")
 	}
-	bin := filepath.Join(t.TempDir(), "bitsift")
-	cmd := exec.Command("go", "build", "-o", bin, ".")
-	cmd.Dir = ".."
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
+	built.once.Do(func() {
+		dir, err := os.MkdirTemp("", "bitsift-ui-test-")
+		if err != nil {
+			built.err = err
+			return
+		}
+		built.dir = dir
+		built.bin = filepath.Join(dir, "bitsift")
+		cmd := exec.Command("go", "build", "-o", built.bin, ".")
+		cmd.Dir = ".."
+		if out, err := cmd.CombinedOutput(); err != nil {
+			built.err = fmt.Errorf("go build: %v\n%s", err, out)
+		}
+	})
+	if built.err != nil {
+		t.Fatal(built.err)
 	}
-	return bin
+	return built.bin
+}
+
+// built is the binary buildBinary made, shared by the tests of one run.
+var built struct {
+	once     sync.Once
+	dir, bin string
+	err      error
+}
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if built.dir != "" {
+		os.RemoveAll(built.dir)
+	}
+	os.Exit(code)
 }
 
 func TestTmuxDemo(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}
@@ -212,6 +243,7 @@ func demoFile(t *testing.T, n int) string {
 }
 
 func TestTmuxReplay(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}
@@ -242,6 +274,7 @@ func shownLines(t *testing.T, screen string) int {
 // TestTmuxReplayPaced: a paced replay shows its progress with an ETA;
 // space pauses the replay itself and n lets one window through.
 func TestTmuxReplayPaced(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}
