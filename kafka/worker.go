@@ -19,6 +19,7 @@ import (
 	"github.com/twmb/franz-go/pkg/kmsg"
 
 	"bitsift/ingest"
+	"bitsift/profile"
 )
 
 // WorkerOptions say what a Worker reads and where its profiles go.
@@ -354,7 +355,7 @@ func (w *Worker) closeSeg(p int32) error {
 	delete(w.segs, p)
 	s.In.Flush()
 	path := filepath.Join(w.opt.Dir, s.FileName(w.id))
-	if err := writeSafely(path, func(out io.Writer) error { return w.opt.Encode(s, out) }); err != nil {
+	if err := profile.WriteDurable(path, func(out io.Writer) error { return w.opt.Encode(s, out) }); err != nil {
 		return fmt.Errorf("worker: profile %s: %w", path, err)
 	}
 	w.Stats.Profiles++

@@ -103,17 +103,29 @@ func Write(w io.Writer, p *Profile) error {
 	return enc.Close()
 }
 
-// WriteFile writes p to path, whole or not at all (a temporary file in the
-// same folder, then a rename).
+// WriteFile writes p to path whole or not at all, and durably
+// (WriteDurable).
 func WriteFile(path string, p *Profile) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".bitsift-profile-*")
+	return WriteDurable(path, func(w io.Writer) error { return Write(w, p) })
+}
+
+// WriteDurable writes a file whole or not at all, and durably before it
+// returns: a temporary file in the same folder, flushed to disk, renamed
+// into place, then the folder flushed so that the rename itself survives a
+// crash. A Kafka worker commits offsets only after this returns.
+func WriteDurable(path string, write func(io.Writer) error) error {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, ".bitsift-profile-*")
 	if err != nil {
 		return err
 	}
-	bw := bufio.NewWriter(tmp)
-	err = Write(bw, p)
+	bw := bufio.NewWriterSize(tmp, 256<<10)
+	err = write(bw)
 	if err == nil {
 		err = bw.Flush()
+	}
+	if err == nil {
+		err = tmp.Sync()
 	}
 	if cerr := tmp.Close(); err == nil {
 		err = cerr
@@ -123,8 +135,14 @@ func WriteFile(path string, p *Profile) error {
 	}
 	if err != nil {
 		os.Remove(tmp.Name())
+		return err
 	}
-	return err
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	defer d.Close()
+	return d.Sync()
 }
 
 // ErrNotProfile says a file is not a profile.
