@@ -1,0 +1,134 @@
+package ui
+
+import (
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+
+	"bitsift/internal/planted"
+)
+
+// focusNameRE reads the field on show from the Focus screen's header.
+var focusNameRE = regexp.MustCompile(`(?m)^(\S+)  \S+ · [0-9.]+ bits of`)
+
+// hashRowRE is a value row shown as a hash (~ and 16 base32 characters).
+var hashRowRE = regexp.MustCompile(`(?m)^[▸ ] ~[A-Z2-7]{16} `)
+
+// TestTmuxRedactScreensHidePlantedSecrets: the planted e-mail, token and
+// number (package planted: in values, in free text that would get a
+// template, in a number that would get buckets and, under --redact, in
+// field names) reach no screen under --redact, nor under --redact-fields
+// naming the fields that hold them: every screen, the Focus screen of every
+// field with the lines behind its top value, the lines behind a surprising
+// record, the rejected lines, the help, and the screen and baseline files
+// the screen saves.
+func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
+	if testing.Short() {
+		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
+	}
+	bin := buildBinary(t)
+	// The raw values of the other bookings and the companions of a
+	// redacted field must not show either.
+	secrets := append([]string{"quaymail", "skipper", "booked for", "~template", "~log"}, planted.Fragments...)
+	for _, c := range []struct {
+		name, flag string
+		names      bool
+	}{
+		{"redact", "--redact", true},
+		{"redact-fields", "--redact-fields " + planted.Fields, false},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			if err := os.WriteFile(filepath.Join(dir, "berths.jsonl"), planted.Log(c.names), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			tt := startTmux(t, 120, 40, "cd "+dir+" && "+bin+" replay "+c.flag+" berths.jsonl")
+			check := func(where, screen string) {
+				t.Helper()
+				for _, s := range secrets {
+					if strings.Contains(screen, s) {
+						t.Errorf("%s: %q is on the screen:\n%s", where, s, screen)
+					}
+				}
+			}
+			check("Fields", tt.waitFor("[1 Fields]", "done", "rejected 1", "401 lines"))
+			tt.keys("2")
+			check("Pairs", tt.waitFor("[2 Pairs]", "H(row|col)"))
+			// Every field up close, from the first by name round to it
+			// again, and the lines behind each one's top value.
+			tt.keys("3")
+			screen := tt.waitFor("TOP VALUES")
+			first := focusNameRE.FindStringSubmatch(screen)
+			if first == nil {
+				t.Fatalf("no field name in the Focus header:\n%s", screen)
+			}
+			name, seen := first[1], 0
+			for {
+				check("Focus on "+name, screen)
+				if (c.names || strings.Contains(","+planted.Fields+",", ","+name+",")) && !hashRowRE.MatchString(screen) {
+					t.Errorf("Focus on %s: no value shown as a hash:\n%s", name, screen)
+				}
+				tt.keys("Enter")
+				check("lines behind the top value of "+name, tt.waitFor("LINES BEHIND", "no raw line kept"))
+				// Escape alone, and wait for it: an Escape read together
+				// with the next key is one alt+key.
+				tt.keys("Escape")
+				tt.waitFor("TOP VALUES")
+				tt.keys("l")
+				screen = tt.waitFor("TOP VALUES")
+				for m := focusNameRE.FindStringSubmatch(screen); m == nil || m[1] == name; m = focusNameRE.FindStringSubmatch(screen) {
+					screen = tt.waitFor("TOP VALUES")
+				}
+				name = focusNameRE.FindStringSubmatch(screen)[1]
+				if seen++; name == first[1] || seen > 60 {
+					break
+				}
+			}
+			if c.names && seen < 20 || !c.names && seen != 5 {
+				t.Errorf("the Focus screen went round %d fields", seen)
+			}
+			tt.keys("4")
+			check("Drift", tt.waitFor("[4 Drift]", "SURPRISING RECORDS  12", "▸"))
+			tt.keys("Enter")
+			check("lines behind a surprising record", tt.waitFor("LINES BEHIND  the surprising record", "no raw line kept"))
+			tt.keys("Escape")
+			tt.waitFor("SURPRISING RECORDS")
+			tt.keys("b")
+			check("Drift, pinned", tt.waitFor("BASELINE  pinned at"))
+			tt.keys("o")
+			tt.waitFor("screen written to")
+			tt.keys("f")
+			tt.waitFor("window written to")
+			tt.keys("5")
+			check("Plan", tt.waitFor("[5 Plan]", "Caution: dropping fields"))
+			tt.keys("6")
+			check("Input", tt.waitFor("[6 Input]", "REJECTED  1 of 401 lines", "berths.jsonl:9"))
+			tt.keys("r")
+			check("rejected lines", tt.waitFor("REJECTED  1 of 401 lines"))
+			tt.keys("?")
+			check("help", tt.waitFor("MOVE", "SCREENS"))
+			tt.keys("Escape")
+			tt.waitFor("[6 Input]")
+			tt.quit()
+			// What the screen saved: the screen as Markdown and JSON,
+			// and the window as a baseline.
+			saved, _ := filepath.Glob(filepath.Join(dir, "bitsift-*"))
+			if len(saved) != 3 {
+				t.Errorf("the screen saved %v, want a screen .md and .json and a baseline", saved)
+			}
+			for _, p := range saved {
+				b, err := os.ReadFile(p)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, s := range secrets {
+					if strings.Contains(string(b), s) {
+						t.Errorf("%s: %q is in the saved file", filepath.Base(p), s)
+					}
+				}
+			}
+		})
+	}
+}
