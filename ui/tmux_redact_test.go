@@ -4,6 +4,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -112,6 +113,7 @@ func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
 			tt.keys("Escape")
 			tt.waitFor("[6 Input]")
 			tt.quit()
+			drillDrift(t, bin, dir, c.flag, c.names, check)
 			// What the screen saved: the screen as Markdown and JSON,
 			// and the window as a baseline.
 			saved, _ := filepath.Glob(filepath.Join(dir, "bitsift-*"))
@@ -131,4 +133,56 @@ func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
 			}
 		})
 	}
+}
+
+var limitsRE = regexp.MustCompile(`"limits":\{"` + planted.Number + `":([0-2])\}`)
+
+// drillDrift replays an incident against a baseline made with the same
+// redaction key (so the hashes match): the planted bookings alone, three
+// times over (user, token and fee shift) and, with the names, the berth's
+// limit moved on (a broken rule); Enter on each of the Drift screen's first
+// items opens the lines behind it, and every screen is checked.
+func drillDrift(t *testing.T, bin, dir, flag string, names bool, check func(where, screen string)) {
+	t.Helper()
+	key := filepath.Join(dir, "redact.key")
+	if err := os.WriteFile(key, []byte("a key of our own for the berths test"), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	var inc strings.Builder
+	for _, l := range strings.Split(string(planted.Log(names)), "\n") {
+		if strings.Contains(l, `"user":"`+planted.Mail+`"`) && strings.HasSuffix(l, "}") {
+			inc.WriteString(limitsRE.ReplaceAllStringFunc(l, func(m string) string {
+				n, _ := strconv.Atoi(limitsRE.FindStringSubmatch(m)[1])
+				return `"limits":{"` + planted.Number + `":` + strconv.Itoa((n+1)%3) + "}"
+			}) + "\n")
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "incident.jsonl"), []byte(strings.Repeat(inc.String(), 3)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	args := append([]string{"report", "-o", "json", "--redact-key", key}, strings.Fields(flag)...)
+	base, err := runBinary(bin, append(args, filepath.Join(dir, "berths.jsonl"))...)
+	if err != nil {
+		t.Fatalf("report %v: %v", args, err)
+	}
+	check("the baseline report", string(base))
+	if err := os.WriteFile(filepath.Join(dir, "base.json"), base, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	tt := startTmux(t, 120, 40, "cd "+dir+" && "+bin+" replay "+flag+" --redact-key redact.key --baseline base.json incident.jsonl")
+	tt.waitFor("[1 Fields]", "done")
+	tt.keys("4")
+	want := []string{"BASELINE  from base.json", "SHIFTED FIELDS", "Δ user", "TIMELINE", "▸"}
+	if names {
+		want = append(want, "BROKEN RULES  1")
+	}
+	check("Drift against the baseline", tt.waitFor(want...))
+	for i := range 8 {
+		tt.keys("Enter")
+		check("lines behind Drift item "+strconv.Itoa(i+1), tt.waitFor("LINES BEHIND", "esc back"))
+		tt.keys("Escape")
+		tt.waitFor("BASELINE  from base.json")
+		tt.keys("j")
+	}
+	tt.quit()
 }
