@@ -7,12 +7,33 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"bitsift/internal/planted"
 )
 
 // focusNameRE reads the field on show from the Focus screen's header.
 var focusNameRE = regexp.MustCompile(`(?m)^(\S+)  \S+ · [0-9.]+ bits of`)
+
+// focusName waits for the Focus screen to show a field other than not,
+// read from its header, and returns it with the screen.
+func focusName(tt *tmuxTerm, not string) (string, string) {
+	tt.t.Helper()
+	deadline := time.Now().Add(45 * time.Second)
+	for {
+		screen := tt.capture()
+		if m := focusNameRE.FindStringSubmatch(screen); m != nil && m[1] != not && strings.Contains(screen, "TOP VALUES") {
+			return m[1], screen
+		}
+		if time.Now().After(deadline) {
+			tt.t.Fatalf("the Focus screen never showed a field other than %q:\n%s", not, screen)
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+}
+
+// fieldCountRE reads how many fields the Fields screen lists.
+var fieldCountRE = regexp.MustCompile(`([0-9]+) of [0-9]+ fields`)
 
 // hashRowRE is a value row shown as a hash (~ and 16 base32 characters).
 var hashRowRE = regexp.MustCompile(`(?m)^[▸ ] ~[A-Z2-7]{16} `)
@@ -54,19 +75,30 @@ func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
 					}
 				}
 			}
-			check("Fields", tt.waitFor("[1 Fields]", "done", "rejected 1", "401 lines"))
+			screen := tt.waitFor("[1 Fields]", "done", "rejected 1", "401 lines")
+			check("Fields", screen)
+			m := fieldCountRE.FindStringSubmatch(screen)
+			if m == nil {
+				t.Fatalf("no field count on the Fields screen:\n%s", screen)
+			}
+			total, _ := strconv.Atoi(m[1])
 			tt.keys("2")
 			check("Pairs", tt.waitFor("[2 Pairs]", "H(row|col)"))
-			// Every field up close, from the first by name round to it
-			// again, and the lines behind each one's top value.
+			// Every field up close, round the fields by name, and the
+			// lines behind each one's top value.
 			tt.keys("3")
-			screen := tt.waitFor("TOP VALUES")
-			first := focusNameRE.FindStringSubmatch(screen)
-			if first == nil {
-				t.Fatalf("no field name in the Focus header:\n%s", screen)
-			}
-			name, seen := first[1], 0
-			for {
+			name, screen := focusName(tt, "")
+			seen := map[string]bool{}
+			for range 2*total + 5 {
+				if len(seen) == total {
+					break
+				}
+				if seen[name] {
+					tt.keys("l")
+					name, screen = focusName(tt, name)
+					continue
+				}
+				seen[name] = true
 				check("Focus on "+name, screen)
 				if (c.names || strings.Contains(","+planted.Fields+",", ","+name+",")) && !hashRowRE.MatchString(screen) {
 					t.Errorf("Focus on %s: no value shown as a hash:\n%s", name, screen)
@@ -74,21 +106,15 @@ func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
 				tt.keys("Enter")
 				check("lines behind the top value of "+name, tt.waitFor("LINES BEHIND", "no raw line kept"))
 				// Escape alone, and wait for it: an Escape read together
-				// with the next key is one alt+key.
+				// with the next key is one alt+key. The field on show
+				// afterwards is the one l moves on from.
 				tt.keys("Escape")
-				tt.waitFor("TOP VALUES")
+				name, _ = focusName(tt, "")
 				tt.keys("l")
-				screen = tt.waitFor("TOP VALUES")
-				for m := focusNameRE.FindStringSubmatch(screen); m == nil || m[1] == name; m = focusNameRE.FindStringSubmatch(screen) {
-					screen = tt.waitFor("TOP VALUES")
-				}
-				name = focusNameRE.FindStringSubmatch(screen)[1]
-				if seen++; name == first[1] || seen > 60 {
-					break
-				}
+				name, screen = focusName(tt, name)
 			}
-			if c.names && seen < 20 || !c.names && seen != 5 {
-				t.Errorf("the Focus screen went round %d fields", seen)
+			if len(seen) != total || c.names && total < 20 || !c.names && total != 5 {
+				t.Errorf("the Focus screen showed %d of %d fields: %v", len(seen), total, seen)
 			}
 			tt.keys("4")
 			check("Drift", tt.waitFor("[4 Drift]", "SURPRISING RECORDS  12", "▸"))
