@@ -2,43 +2,21 @@ package cli
 
 import (
 	"encoding/json"
-	"fmt"
 	"strings"
 	"testing"
+
+	"bitsift/internal/planted"
 )
 
-// The planted secrets: an e-mail address, a token and a number, written
-// into values, into free text that gets a template, into a number field
-// that gets buckets and (for --redact) into field names.
+// The planted secrets and the log that holds them (package planted, shared
+// with the screen's test in ui).
 const (
-	plantMail   = "wren.holloway@quaymail.test"
-	plantToken  = "tk7f3a9c2e81b4d6"
-	plantNumber = "739152"
+	plantMail   = planted.Mail
+	plantToken  = planted.Token
+	plantNumber = planted.Number
 )
 
-// privacyLog is a JSON log of a harbour's berth bookings with the secrets
-// planted; names adds fields whose names hold them.
-func privacyLog(names bool) []byte {
-	var b strings.Builder
-	verbs := []string{"booked", "released", "moved", "held"}
-	for i := 0; i < 400; i++ {
-		user, token, fee := fmt.Sprintf("skipper%d@quaymail.test", i%37), fmt.Sprintf("tk%014x", i*7919), fmt.Sprint(1000+i*37)
-		if i%5 == 0 {
-			user, token, fee = plantMail, plantToken, plantNumber
-		}
-		msg := fmt.Sprintf("berth %d %s for %s with %s fee %s", i%12, verbs[i%4], user, token, fee)
-		fmt.Fprintf(&b, `{"berth":%d,"user":%q,"token":%q,"fee":%s,"msg":%q`, i%12, user, token, fee, msg)
-		if names {
-			fmt.Fprintf(&b, `,"sessions":{%q:{"state":"open"},"skipper%d@quaymail.test":{"state":"shut"}},"grants":{%q:1},"limits":{%q:%d}`,
-				plantMail, i%23, plantToken, plantNumber, i%3)
-		}
-		b.WriteString("}\n")
-		if i == 7 {
-			fmt.Fprintf(&b, "{\"user\":%q,\"token\":%q,\"fee\":%s broken\n", plantMail, plantToken, plantNumber)
-		}
-	}
-	return []byte(b.String())
-}
+var privacyLog = planted.Log
 
 // TestRedactHidesPlantedSecretsEverywhere: under --redact, and under
 // --redact-fields naming the fields that hold them, the planted e-mail,
@@ -57,7 +35,7 @@ func TestRedactHidesPlantedSecretsEverywhere(t *testing.T) {
 		names bool
 	}{
 		{[]string{"--redact"}, true},
-		{[]string{"--redact-fields", "user,token,fee,msg"}, false},
+		{[]string{"--redact-fields", planted.Fields}, false},
 	} {
 		p := write(t, "berths.jsonl", privacyLog(c.names))
 		for _, o := range outputs {
@@ -66,7 +44,7 @@ func TestRedactHidesPlantedSecretsEverywhere(t *testing.T) {
 			if code != 0 && code != 3 {
 				t.Errorf("%v: exit %d: %s", args, code, errs)
 			}
-			for _, secret := range []string{plantMail, plantToken, plantNumber, "wren", "holloway"} {
+			for _, secret := range planted.Fragments {
 				if strings.Contains(out, secret) || strings.Contains(errs, secret) {
 					t.Errorf("%v: %q reached the output", args, secret)
 				}
