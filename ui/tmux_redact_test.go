@@ -47,6 +47,7 @@ var hashRowRE = regexp.MustCompile(`(?m)^[▸ ] ~[A-Z2-7]{16} `)
 // record, the rejected lines, the help, and the screen and baseline files
 // the screen saves.
 func TestTmuxRedactScreensHidePlantedSecrets(t *testing.T) {
+	t.Parallel() // waits on the screen, mostly; the serial tmux tests time keys
 	if testing.Short() {
 		t.Skip("-short: the end-to-end screen test runs a binary for seconds")
 	}
