@@ -1,7 +1,6 @@
 package ui
 
 import (
-	"strings"
 	"time"
 
 	"github.com/charmbracelet/bubbles/help"
@@ -11,7 +10,6 @@ import (
 	"bitsift/ingest"
 	"bitsift/model"
 	"bitsift/plan"
-	"bitsift/sanitize"
 )
 
 // screen is one of the six screens.
@@ -399,53 +397,6 @@ func (m Model) arrive(before screen) (tea.Model, tea.Cmd) {
 	return m, nil
 }
 
-// pause pauses a replay itself (the display goes on showing it paused),
-// or else the display (ingest goes on).
-func (m Model) pause() (tea.Model, tea.Cmd) {
-	if p := m.feed.Pacer(); p != nil {
-		if p.Paused() {
-			p.Resume()
-			m.say("replay resumed")
-		} else {
-			p.Pause()
-			m.say("replay paused: n lets one window through, space resumes")
-		}
-		return m, m.fetch(true)
-	}
-	m.paused = !m.paused
-	m.gen++
-	if !m.paused {
-		return m, m.fetch(false)
-	}
-	return m, nil
-}
-
-// step lets one window of records through a paused replay.
-func (m Model) step() (tea.Model, tea.Cmd) {
-	p := m.feed.Pacer()
-	if p == nil {
-		m.say("n steps a replay; this source is not one")
-		return m, nil
-	}
-	n := stepRecords(m.e.frame)
-	p.Step(n)
-	m.say("replay: " + count(int64(n)) + " lines on, then paused (space resumes)")
-	return m, m.fetch(true)
-}
-
-// stepRecords is one window of lines: the window's length for a record
-// window, else a steady 1,000 (a window "all" or of a duration has no
-// length in records, and a step that grew with the window would read as
-// uneven).
-func stepRecords(f *ingest.Frame) int {
-	if f != nil {
-		if w := f.Snap.Window; w.Kind == model.WindowRecords {
-			return w.Records
-		}
-	}
-	return 1000
-}
-
 // show switches screens, closing the help page.
 func (m Model) show(s screen) Model {
 	if s != m.screen && s == screenFocus {
@@ -482,187 +433,4 @@ func (m Model) toScreen(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.intake, cmd = m.intake.Update(msg)
 	}
 	return m, cmd
-}
-
-// nextWindow asks for the next window in the cycle.
-func (m Model) nextWindow() (tea.Model, tea.Cmd) {
-	cur := model.Window{Kind: model.WindowAll}
-	if m.pendingWindow != nil {
-		cur = *m.pendingWindow
-	} else if m.e.frame != nil {
-		cur = m.e.frame.Snap.Window
-	}
-	next := m.opt.Windows[0]
-	for i, w := range m.opt.Windows {
-		if w == cur {
-			next = m.opt.Windows[(i+1)%len(m.opt.Windows)]
-		}
-	}
-	m.feed.SetWindow(next)
-	m.pendingWindow = &next
-	if f := m.e.frame; f != nil && windowGrows(cur, next) {
-		// A larger window starts from the records the window holds:
-		// those that already left it are gone, and the screen says so.
-		left := f.Source.Lines - int64(f.Snap.Records) - f.Snap.Input.Rejected
-		if left > 0 {
-			m.say("window " + windowName(next) + ": starts from the " + count(int64(f.Snap.Records)) +
-				" records held; " + count(left) + " earlier ones already left and are not counted")
-		}
-	}
-	if m.paused {
-		return m, nil
-	}
-	return m, m.fetch(true)
-}
-
-// Sizes of the frame around the screens.
-const (
-	topLines    = 1
-	statusLines = 2
-)
-
-// resize lays every screen out for a terminal of w×h cells.
-func (m Model) resize(w, h int) Model {
-	m.w, m.h = w, h
-	ch := max(1, h-topLines-statusLines)
-	m.help.Width = w
-	m.fields = m.fields.setSize(w, ch)
-	m.pairs = m.pairs.setSize(w, ch)
-	m.focus = m.focus.setSize(w, ch)
-	m.drift = m.drift.setSize(w, ch)
-	m.planner = m.planner.setSize(w, ch)
-	m.intake = m.intake.setSize(w, ch)
-	m.lines = m.lines.setSize(w, ch)
-	return m
-}
-
-// View draws the top line, the screen (or the help page) and the status
-// lines.
-func (m Model) View() string {
-	if m.w < 40 || m.h < 10 {
-		return "bitsift needs at least 40×10 cells (80×24 to see it all); q quits"
-	}
-	ch := max(1, m.h-topLines-statusLines)
-	var body string
-	switch {
-	case m.showHelp:
-		body = m.helpPage(ch)
-	case m.showLines:
-		body = m.lines.View()
-	case m.screen == screenFields:
-		body = m.fields.View()
-	case m.screen == screenPairs:
-		body = m.pairs.View()
-	case m.screen == screenFocus:
-		body = m.focus.View()
-	case m.screen == screenDrift:
-		body = m.drift.View()
-	case m.screen == screenPlan:
-		body = m.planner.View()
-	default:
-		body = m.intake.View()
-	}
-	st := m.statusLines()
-	if m.narrow.on {
-		st[1] = ansiFit(" "+m.narrow.input.View(), m.w)
-	}
-	return m.topLine() + "\n" + body + "\n" + st[0] + "\n" + st[1]
-}
-
-func (m Model) topLine() string {
-	st := m.e.st
-	labels := make([]string, numScreens)
-	width := 9 // " bitsift "
-	for i, name := range screenNames {
-		labels[i] = string(rune('1'+i)) + " " + name
-		if screen(i) == screenDrift {
-			if n := m.drift.alerts(); n > 0 {
-				labels[i] += " !" + count(int64(n))
-			}
-		}
-		width += sanitize.Width(labels[i]) + 3
-	}
-	if m.focus.field != "" {
-		// The field's name goes on its tab as far as the line has room.
-		if room := m.w - width - 2; room >= 4 {
-			labels[screenFocus] += ": " + sanitize.Fit(m.focus.field, min(16, room))
-		}
-	}
-	parts := []string{st.Title.Render(" bitsift ")}
-	for i, label := range labels {
-		if screen(i) == m.screen && !m.showHelp {
-			parts = append(parts, st.TabActive.Render("["+label+"]"))
-		} else {
-			parts = append(parts, st.Tab.Render(" "+label+" "))
-		}
-	}
-	line := strings.Join(parts, " ")
-	if m.showHelp {
-		line += " " + st.TabActive.Render("[? keys]")
-	}
-	return ansiFit(line, m.w)
-}
-
-// helpPage is the grouped key help: the groups packed into as few rows as
-// the width allows.
-func (m Model) helpPage(h int) string {
-	groups := m.e.keys.FullHelp()
-	titled := make([][]key.Binding, len(groups))
-	for i, g := range groups {
-		head := key.NewBinding(key.WithKeys("\x00"+helpGroups[i]), key.WithHelp(strings.ToUpper(helpGroups[i]), ""))
-		titled[i] = append([]key.Binding{head}, g...)
-	}
-	var rows []string
-	var row [][]key.Binding
-	flush := func() {
-		if len(row) > 0 {
-			if len(rows) > 0 {
-				rows = append(rows, "")
-			}
-			rows = append(rows, m.help.FullHelpView(row))
-			row = nil
-		}
-	}
-	// Measured without the help model's own cut at the width.
-	whole := m.help
-	whole.Width = 0
-	for _, g := range titled {
-		wide := append(append([][]key.Binding(nil), row...), g)
-		if len(row) > 0 && maxWidth(whole.FullHelpView(wide)) > m.w-2 {
-			flush()
-		}
-		row = append(row, g)
-	}
-	flush()
-	lines := strings.Split(strings.Join(rows, "\n"), "\n")
-	for i := range lines {
-		lines[i] = " " + lines[i]
-	}
-	note := " space pauses the display only: ingest goes on. ? or esc closes this page."
-	if m.feed.Pacer() != nil {
-		note = " space pauses the replay itself; n lets one window through. ? or esc closes this page."
-	}
-	lines = append(lines, "", m.e.st.Muted.Render(ansiFit(note, m.w)))
-	return fill(lines, h)
-}
-
-// maxWidth is the widest line of s, in cells.
-func maxWidth(s string) int {
-	w := 0
-	for _, l := range strings.Split(s, "\n") {
-		w = max(w, sanitize.Width(ansiStrip(l)))
-	}
-	return w
-}
-
-// windowGrows says whether next may hold more records than cur: the
-// records cur let go cannot come back.
-func windowGrows(cur, next model.Window) bool {
-	switch {
-	case next.Kind == model.WindowAll:
-		return cur.Kind != model.WindowAll
-	case cur.Kind == model.WindowRecords && next.Kind == model.WindowRecords:
-		return next.Records > cur.Records
-	}
-	return cur.Kind != next.Kind
 }
