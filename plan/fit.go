@@ -4,7 +4,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"io"
-	"strconv"
 	"strings"
 
 	"bitsift/sanitize"
@@ -41,22 +40,6 @@ func Fits(emit, format string) bool {
 		}
 	}
 	return false
-}
-
-// csvCell neutralises a value for a spreadsheet: a cell that begins with
-// = + - @ or a tab or carriage return is read as a formula by some
-// spreadsheet programs (the OWASP "CSV injection" advice, from memory), so
-// it gets a leading apostrophe, unless it is a plain number such as -3.
-// Control characters are written escaped, as on the screen.
-func csvCell(s string) string {
-	s = sanitize.String(s)
-	if s == "" || !strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		return s
-	}
-	if _, err := strconv.ParseFloat(s, 64); err == nil {
-		return s
-	}
-	return "'" + s
 }
 
 // cellText is a table value as a lookup table holds it: a JSON string's
@@ -102,7 +85,7 @@ func WriteTablesCSV(w io.Writer, p *Plan) error {
 			}
 			row[4] = strings.Join(notes, ", ")
 			for i := range row {
-				row[i] = csvCell(row[i])
+				row[i] = sanitize.CSVCell(row[i])
 			}
 			cw.Write(row)
 		}

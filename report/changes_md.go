@@ -163,20 +163,10 @@ func writeChangesCSV(w io.Writer, r *Report) error {
 	cw := csv.NewWriter(w)
 	for _, row := range rows {
 		for i, c := range row {
-			row[i] = changeCell(c)
+			row[i] = sanitize.CSVCell(c)
 		}
 		cw.Write(row)
 	}
 	cw.Flush()
 	return cw.Error()
-}
-
-func changeCell(s string) string {
-	s = sanitize.String(s)
-	if len(s) > 1 && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		if _, err := strconv.ParseFloat(s, 64); err != nil {
-			return "'" + s
-		}
-	}
-	return s
 }

@@ -1,20 +1,26 @@
 package sanitize
 
-import "strings"
+import (
+	"strconv"
+	"strings"
+)
 
 // CSVCell makes a text cell safe for a CSV file that a spreadsheet may
 // open: control characters are escaped (String), and a cell that starts
 // with =, +, -, @, a tab or a carriage return, which a spreadsheet would
 // take for a formula, gets a leading apostrophe (the usual CSV-injection
-// defence, as OWASP describes it). Numbers written by bitsift itself are
-// not text cells and are left alone.
+// defence, as OWASP describes it), unless it is a plain number such as -3,
+// which a spreadsheet reads as the number it is. Numbers written by
+// bitsift itself are not text cells and are left alone.
 func CSVCell(s string) string {
 	if s == "" {
 		return s
 	}
 	switch s[0] {
 	case '=', '+', '-', '@', '\t', '\r':
-		s = "'" + s
+		if _, err := strconv.ParseFloat(s, 64); err != nil {
+			s = "'" + s
+		}
 	}
 	return String(s)
 }
