@@ -247,27 +247,12 @@ func (c *clickHouse) summary(ctx context.Context, from string, f field, k int) (
 }
 
 func (c *clickHouse) sample(ctx context.Context, from string, fs []field, n int) ([][]*string, error) {
-	var sel []string
-	for _, f := range fs {
-		sel = append(sel, f.expr)
-	}
-	rows, err := c.query(ctx, fmt.Sprintf("SELECT %s %s LIMIT %d", strings.Join(sel, ", "), from, n))
+	rows, err := c.query(ctx, sampleQuery(from, fs, n))
 	if err != nil {
 		return nil, err
 	}
-	var out [][]*string
-	for rows.Next() {
-		row := make([]*string, len(fs))
-		dest := make([]any, len(fs))
-		for i := range row {
-			dest[i] = &row[i]
-		}
-		if err := rows.Scan(dest...); err != nil {
-			return nil, chErr(err)
-		}
-		out = append(out, row)
-	}
-	return out, chErr(rows.Err())
+	out, err := scanStrings(rows, len(fs))
+	return out, chErr(err)
 }
 
 // counts runs one query: a UNION ALL of one GROUP BY per set, each tagged

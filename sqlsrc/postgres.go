@@ -219,27 +219,12 @@ UNION ALL
 }
 
 func (p *postgres) sample(ctx context.Context, from string, fs []field, n int) ([][]*string, error) {
-	var sel []string
-	for _, f := range fs {
-		sel = append(sel, f.expr)
-	}
-	rows, err := p.conn.Query(ctx, fmt.Sprintf("SELECT %s %s LIMIT %d", strings.Join(sel, ", "), from, n))
+	rows, err := p.conn.Query(ctx, sampleQuery(from, fs, n))
 	if err != nil {
 		return nil, pgErr(err)
 	}
-	var out [][]*string
-	for rows.Next() {
-		row := make([]*string, len(fs))
-		dest := make([]any, len(fs))
-		for i := range row {
-			dest[i] = &row[i]
-		}
-		if err := rows.Scan(dest...); err != nil {
-			return nil, pgErr(err)
-		}
-		out = append(out, row)
-	}
-	return out, pgErr(rows.Err())
+	out, err := scanStrings(rows, len(fs))
+	return out, pgErr(err)
 }
 
 // counts runs one GROUPING SETS query. GROUPING(...) takes at most 31

@@ -394,3 +394,37 @@ func sortedKeys(m map[string]int64) []string {
 	sort.Strings(ks)
 	return ks
 }
+
+// sampleQuery selects the first n rows of fs's expressions.
+func sampleQuery(from string, fs []field, n int) string {
+	sel := make([]string, len(fs))
+	for i, f := range fs {
+		sel[i] = f.expr
+	}
+	return fmt.Sprintf("SELECT %s %s LIMIT %d", strings.Join(sel, ", "), from, n)
+}
+
+// rowScanner is what pgx's and clickhouse-go's result rows share.
+type rowScanner interface {
+	Next() bool
+	Scan(dest ...any) error
+	Err() error
+}
+
+// scanStrings reads every row of width columns as nullable strings (nil
+// for NULL).
+func scanStrings(rows rowScanner, width int) ([][]*string, error) {
+	var out [][]*string
+	for rows.Next() {
+		row := make([]*string, width)
+		dest := make([]any, width)
+		for i := range row {
+			dest[i] = &row[i]
+		}
+		if err := rows.Scan(dest...); err != nil {
+			return nil, err
+		}
+		out = append(out, row)
+	}
+	return out, rows.Err()
+}
