@@ -10,11 +10,12 @@ import (
 // with =, +, -, @, a tab or a carriage return, which a spreadsheet would
 // take for a formula, gets a leading apostrophe (the usual CSV-injection
 // defence, as OWASP describes it), unless it is a plain number such as -3,
-// which a spreadsheet reads as the number it is. Numbers written by
-// bitsift itself are not text cells and are left alone.
+// which a spreadsheet reads as the number it is, or that one character
+// alone. Numbers written by bitsift itself are not text cells and are left
+// alone.
 func CSVCell(s string) string {
-	if s == "" {
-		return s
+	if len(s) < 2 { // a lone sign or @ runs nothing (and "-" is how stdin is named)
+		return String(s)
 	}
 	switch s[0] {
 	case '=', '+', '-', '@', '\t', '\r':

@@ -15,6 +15,7 @@ func TestCSVCell(t *testing.T) {
 		"@SUM(A1)":        "'@SUM(A1)",
 		"\t=1":            `'\t=1`,
 		"\r=1":            `'\r=1`,
+		"-":               "-",
 		"-7":              "-7",
 		"+1.5e3":          "+1.5e3",
 		"a\x1b[31mred":    `a\x1b[31mred`,
