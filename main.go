@@ -8,6 +8,7 @@ import (
 	"os"
 	"os/signal"
 	"runtime/debug"
+	"runtime/pprof"
 	"syscall"
 	"time"
 
@@ -58,10 +59,26 @@ func main() {
 		fmt.Fprintf(os.Stderr, "bitsift: %s; stopped before the output was complete\n", why.Error())
 		os.Exit(why.Code())
 	}()
+	// BITSIFT_CPUPROFILE=file writes a CPU profile of the run, for
+	// `go tool pprof` (DEVELOPERS.md, "Measuring speed").
+	if path := os.Getenv("BITSIFT_CPUPROFILE"); path != "" {
+		if f, err := os.Create(path); err == nil {
+			if pprof.StartCPUProfile(f) == nil {
+				defer f.Close()
+			}
+		}
+	}
 	code := cli.Run(ctx, os.Args[1:], cli.IO{
 		In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		IsTerminal: isatty.IsTerminal(os.Stdout.Fd()),
 	})
 	signal.Stop(sigs)
+	pprof.StopCPUProfile()
+	if path := os.Getenv("BITSIFT_MEMPROFILE"); path != "" {
+		if f, err := os.Create(path); err == nil {
+			pprof.Lookup("heap").WriteTo(f, 0)
+			f.Close()
+		}
+	}
 	os.Exit(code)
 }
