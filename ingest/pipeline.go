@@ -95,9 +95,13 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 			panic("ingest: format " + in.format.Name() + " vanished from the registry")
 		}
 		times := in.times // settled: every copy decides alike
+		// The companions are chosen by now and do not change while the
+		// pipeline runs (a read of several files, which may add some,
+		// stays sequential): each worker labels with copies of its own.
+		lab := in.comp.Labeller()
 		go func() {
 			for b := range work {
-				parseBatch(b, f, &times)
+				parseBatch(b, f, &times, lab)
 				b.ready <- struct{}{}
 			}
 		}()
