@@ -59,7 +59,10 @@ const timeFinderTries = 101
 // first fault, io.EOF at a clean end, or ctx.Err().
 func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 	workers := runtime.GOMAXPROCS(0)
-	free := make(chan *batch, 2*workers+2)
+	// One batch being filled, one being taken, one for each worker: the
+	// workers parse far faster than the model takes, so more would only
+	// hold memory (each is about 1 MB of text and records).
+	free := make(chan *batch, workers+2)
 	for range cap(free) {
 		free <- &batch{ready: make(chan struct{}, 1)}
 	}
