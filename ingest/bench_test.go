@@ -6,8 +6,10 @@ import (
 	"sync"
 	"testing"
 
+	"bitsift/companion"
 	"bitsift/demo"
 	"bitsift/model"
+	"bitsift/parse"
 	"bitsift/report"
 )
 
@@ -48,4 +50,33 @@ func BenchmarkReport(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(benchLines)*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+}
+
+// BenchmarkParseBatch is one pipeline worker's work on a batch of demo
+// lines: parse, find the time, append the companions (the demo's latency
+// buckets). Reported per line.
+func BenchmarkParseBatch(b *testing.B) {
+	g := demo.New(1, batchLines)
+	bt := &batch{}
+	for len(bt.lines) < batchLines {
+		bt.add(parse.Line{Text: g.Append(nil), Num: int64(len(bt.lines) + 1), Source: "demo"}, nil)
+	}
+	var f parse.JSON
+	sample := make([]*parse.Record, 256)
+	for i := range sample {
+		sample[i] = &parse.Record{}
+		if err := f.Parse(bt.line(i).Text, sample[i]); err != nil {
+			b.Fatal(err)
+		}
+	}
+	comp := companion.Choose(sample, companion.Options{})
+	lab := comp.Labeller()
+	if lab == nil {
+		b.Fatal("the demo has no companions")
+	}
+	var times parse.TimeFinder
+	for b.Loop() {
+		parseBatch(bt, &f, &times, lab)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(bt.lines)), "ns/line")
 }

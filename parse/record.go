@@ -65,11 +65,14 @@ func (r *Record) end(k0, v0 int32) {
 	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
 }
 
-// Get returns the value of the first field named key.
+// Get returns the value of the first field named key. Keys of another
+// length are passed over on their spans alone (companions and the time
+// finder call it on every record).
 func (r *Record) Get(key string) ([]byte, bool) {
-	for i := range r.spans {
-		if string(r.Key(i)) == key {
-			return r.Value(i), true
+	n := int32(len(key))
+	for _, s := range r.spans {
+		if s.k1-s.k0 == n && string(r.buf[s.k0:s.k1]) == key {
+			return r.buf[s.v0:s.v1], true
 		}
 	}
 	return nil, false
