@@ -64,11 +64,14 @@ type timeLayout struct {
 	// the format may be looked for in any field.
 	strong bool
 	parse  func(s string, ref time.Time) (int64, bool)
+	// fast, when set, reads the common forms from bytes (done), leaving
+	// the rest to parse.
+	fast func(b []byte) (ns int64, done bool)
 }
 
 // timeLayouts are tried in order on each candidate value.
 var timeLayouts = []*timeLayout{
-	{name: "rfc3339", strong: true, parse: parseISO},
+	{name: "rfc3339", strong: true, parse: parseISO, fast: rfc3339Fast},
 	{name: "access", strong: true, parse: parseAccess},
 	{name: "syslog", strong: true, parse: parseSyslog},
 	// The forms line headers use (header_time.go), under time keys only.
@@ -187,6 +190,11 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 		v, ok := rec.Get(tf.key)
 		if !ok {
 			return 0, false
+		}
+		if tf.layout.fast != nil {
+			if t, done := tf.layout.fast(v); done {
+				return t, true
+			}
 		}
 		return tf.layout.parse(string(v), tf.ref)
 	}
