@@ -89,6 +89,7 @@ func (m *Model) historyEvery() int {
 func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	b := &m.batch
 	k := len(recs)
+	m.capFlat(k)
 	// 1. Keys to fields.
 	b.ents = b.ents[:0]
 	for r, rec := range recs {
@@ -151,7 +152,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		gone := 0
 		for r := 0; r < k; r++ {
 			if len(ents) > 0 && int(ents[0].r) == r {
-				b.rows[r*w+f] = fl.add(ents[0].v, maxD)
+				b.rows[r*w+f] = fl.addAt(ents[0].v, maxD, nOld+r)
 				ents = ents[1:]
 			}
 			for ; gone < b.after[r]; gone++ {

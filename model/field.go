@@ -44,6 +44,10 @@ type field struct {
 	// about n²/2^65 (3e-6 for ten million values).
 	byHash *hashTable
 	ids    idChunks
+	// flat, when not nil, replaces byHash: the identifier's values are a
+	// list of hashes, one per record (flatids.go); counts is then nil and
+	// distinct and s are exact as of the list's last settle.
+	flat *flatIDs
 	// samples holds the first few values of a hashed field, for display.
 	samples []string
 
@@ -69,7 +73,16 @@ func newField(name string, index int) *field {
 	}
 }
 
-// intern returns the id of value v, adding it if new, and counts one more
+// addAt is add for the record that will be the store's r-th: a flat
+// field lists it there, its id made later (addAt returns absent).
+func (f *field) addAt(v []byte, maxDistinct int, r int) uint32 {
+	if f.flat != nil {
+		return f.addFlat(v, r)
+	}
+	return f.add(v, maxDistinct)
+}
+
+// add returns the id of value v, adding it if new, and counts one more
 // record with it.
 func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if f.byHash != nil {
@@ -141,7 +154,7 @@ func (f *field) remove(id uint32) {
 
 // addHashed is add for a hashed field.
 func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
-	h := maphash.Bytes(hashSeed, v)
+	h := hashBytes(v)
 	id := probe(f.byHash, h, &f.ids)
 	if id == 0 {
 		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
@@ -173,6 +186,12 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	f.valueBytes += int64(f.ids.length(id))
 	return id
 }
+
+// hashBytes is the keyed hash of an identifier's value.
+func hashBytes(v []byte) uint64 { return maphash.Bytes(hashSeed, v) }
+
+// hashed says whether f keeps no text of its values (see byHash, flat).
+func (f *field) hashed() bool { return f.byHash != nil || f.flat != nil }
 
 // hashValues turns the field into a hashed one (see byHash), dropping the
 // text of its values.

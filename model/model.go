@@ -32,6 +32,13 @@ type Options struct {
 	// (SnapshotFromCounts), which needs every pair's cells from every
 	// shard. Memory then grows with the shard's records, not its window.
 	NoIdentifiers bool
+	// Headless says the model's owner takes few snapshots (a report or a
+	// plan, one at the end): over a window that keeps everything, an
+	// identifier may then be kept as a list of hashes sorted when a
+	// snapshot asks, instead of a table kept exact as it goes
+	// (flatids.go). A screen, snapshotting several times a second, leaves
+	// it unset.
+	Headless bool
 }
 
 func (o Options) withDefaults() Options {
@@ -127,6 +134,7 @@ func (m *Model) Seen() int64 { return m.seen }
 // covers. line is the record's line number in its source and t its time
 // (record time, else arrival time), in Unix nanoseconds.
 func (m *Model) Add(rec *parse.Record, line int64, t int64) {
+	m.capFlat(1)
 	m.gen++
 	if m.gen == 0 { // wrapped: old marks could collide
 		clear(m.mark)
@@ -160,7 +168,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 			continue // a repeated key: the first one counts
 		}
 		m.mark[idx] = m.gen
-		m.cur[idx] = m.fields[idx].add(rec.Value(i), m.opt.MaxDistinct)
+		m.cur[idx] = m.fields[idx].addAt(rec.Value(i), m.opt.MaxDistinct, m.st.n)
 		if idx >= width {
 			width = idx + 1
 		}
@@ -282,6 +290,7 @@ func (m *Model) track(idx int) {
 	if f.tracked || f.timestamp {
 		return
 	}
+	m.unflatten(idx)
 	f.tracked = true
 	var added []int
 	for j, g := range m.fields {
@@ -338,6 +347,11 @@ func (m *Model) untrack(idx int) {
 // and out of pair tracking.
 func (m *Model) reclassify() {
 	for i, f := range m.fields {
+		if f.flat != nil {
+			m.reclassifyFlat(i)
+		}
+	}
+	for i, f := range m.fields {
 		ratio := float64(f.distinct+f.overflowed) / math.Max(1, float64(f.present))
 		switch {
 		case !f.ident && !m.opt.NoIdentifiers && f.present >= identMinPresent && ratio >= identEnter:
@@ -356,8 +370,12 @@ func (m *Model) reclassify() {
 		} else {
 			f.identRounds = 0
 		}
-		if f.ident && f.byHash == nil && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+		if f.ident && !f.hashed() && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
 			f.hashValues()
+		}
+		if f.ident && f.byHash != nil && f.overflowed == 0 && m.flatOK() &&
+			float64(f.distinct) >= flatEnter*float64(f.present) && int(f.present) <= m.opt.MaxDistinct/2 {
+			m.flatten(i)
 		}
 	}
 	for i, f := range m.fields {
@@ -377,6 +395,7 @@ func (m *Model) Flush() {
 // Rebuild recomputes every table from the window's records: a reference
 // for tests of the incremental updates.
 func (m *Model) Rebuild() *Model {
+	m.unflattenAll()
 	r := New(m.opt)
 	r.opt.Window = Window{Kind: WindowAll}
 	for n, s := range m.synthetic {

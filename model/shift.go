@@ -78,7 +78,7 @@ func JensenShannon(p, q []float64) float64 {
 func (m *Model) fieldShift(s *Snapshot, i int, bp *FieldProfile, baseRecords int) *Shift {
 	f := m.fields[i]
 	fs := &s.Fields[i]
-	if fs.Kind == Identifier || f.byHash != nil || (bp != nil && bp.Kind == Identifier) {
+	if fs.Kind == Identifier || f.hashed() || (bp != nil && bp.Kind == Identifier) {
 		return nil
 	}
 	if bp == nil {

@@ -1,0 +1,253 @@
+package model
+
+import (
+	"math"
+	"slices"
+)
+
+// Identifiers as a list of hashes. A headless run (Options.Headless: a
+// report or a plan, which take one snapshot at the end) over the whole
+// stream (WindowAll, nothing ever leaves) keeps a hashed identifier's
+// values as one 64-bit hash per record, in record order, instead of a hash
+// table of its distinct values: appending costs nothing like a probe into a
+// table of a million entries (a cache miss each, and the table's doublings),
+// and the list costs 12 bytes a record against about 36. The exact figures
+// (distinct values, Σ c·log c) come from sorting a copy of the list when a
+// snapshot asks (settle).
+//
+// The identifier rule still sees exact counts. It needs them to decide that
+// a field stops being an identifier (its share of distinct values falls
+// below identLeave); distinct values never decrease in a window that keeps
+// everything, so the count of the last settle is a lower bound, and only
+// when that bound no longer proves the share above identLeave is the list
+// settled again, exactly. A field whose exact share is then under
+// flatLeave goes back to the table (unflatten), as does one that could
+// reach MaxDistinct (past which values overflow, a decision made value by
+// value), and every field before anything reads ids from the store: a
+// flat field's store column is empty, its ids being made by unflatten.
+// Between settles the list grows by at least 1/flatLeave−1/identLeave of
+// itself, so settling costs O(n log n) over the whole run.
+//
+// Entropy history notes (noteEntropies) taken while a field is flat are
+// placeholders, filled by unflatten, which replays the list in order: an
+// identifier's history is read only once it has stopped being one.
+
+// flatEnter and flatLeave bound the share of distinct values of a flat
+// identifier: it becomes flat at a reclassification with at least
+// flatEnter, and leaves the list for the table when a settle finds less
+// than flatLeave.
+const (
+	flatEnter = 0.6
+	flatLeave = 0.5
+)
+
+const (
+	flatChunkBits = 16
+	flatChunkMask = 1<<flatChunkBits - 1
+)
+
+// flatIDs is a flat identifier's list: the hash and length of the value of
+// store record r, or 0 when the record lacks the field. Chunks never move,
+// so the list grows without copying.
+type flatIDs struct {
+	h [][]uint64
+	l [][]uint32
+	n int // records listed (later ones lack the field)
+	// settled: f.distinct and f.s are exact for the first settled records.
+	settled int
+	// notes are the store sizes at which noteEntropies left a NaN in the
+	// field's history, oldest first (at most historyLen).
+	notes []int
+}
+
+// flatHash is the list's hash of a value: maphash, with 0 (absent in the
+// list) moved to 1. Two values then share a hash with probability about
+// n²/2^65, as in the table.
+func flatHash(h uint64) uint64 {
+	if h == 0 {
+		return 1
+	}
+	return h
+}
+
+// put sets record r's hash and length; records between the last listed and
+// r lack the field.
+func (fl *flatIDs) put(r int, h uint64, l int) {
+	for r>>flatChunkBits >= len(fl.h) {
+		fl.h = append(fl.h, make([]uint64, 1<<flatChunkBits))
+		fl.l = append(fl.l, make([]uint32, 1<<flatChunkBits))
+	}
+	fl.h[r>>flatChunkBits][r&flatChunkMask] = h
+	fl.l[r>>flatChunkBits][r&flatChunkMask] = uint32(l)
+	fl.n = max(fl.n, r+1)
+}
+
+func (fl *flatIDs) at(r int) (uint64, uint32) {
+	if r >= fl.n {
+		return 0, 0
+	}
+	return fl.h[r>>flatChunkBits][r&flatChunkMask], fl.l[r>>flatChunkBits][r&flatChunkMask]
+}
+
+// flatOK says whether this model may keep identifiers as lists.
+func (m *Model) flatOK() bool {
+	return m.opt.Headless && m.opt.Window.Kind == WindowAll && m.base.mode != BaselineRolling
+}
+
+// addFlat is add for a flat field: record r (its store index) has value v.
+func (f *field) addFlat(v []byte, r int) uint32 {
+	f.flat.put(r, flatHash(hashBytes(v)), len(v))
+	if len(f.samples) < 3 {
+		f.samples = append(f.samples, string(v))
+	}
+	f.present++
+	f.valueBytes += int64(len(v))
+	return absent
+}
+
+// flatten turns hashed identifier idx into a flat one, its list made from
+// the store's column, which is then emptied.
+func (m *Model) flatten(idx int) {
+	f := m.fields[idx]
+	fl := &flatIDs{}
+	col := m.st.column(idx, 0, m.st.n, nil)
+	for r, id := range col {
+		if id != absent {
+			fl.put(r, flatHash(f.ids.hash(id)), int(f.ids.length(id)))
+		}
+	}
+	fl.settled = m.st.n
+	m.st.dropColumn(idx)
+	f.flat = fl
+	f.byHash, f.ids, f.counts, f.free = nil, idChunks{}, nil, nil
+}
+
+// settle makes f.distinct and f.s exact for the window (a flat field's).
+func (m *Model) settle(f *field) {
+	fl := f.flat
+	if fl == nil || fl.settled == m.st.n {
+		return
+	}
+	hs := make([]uint64, 0, f.present)
+	for c, chunk := range fl.h {
+		end := min(len(chunk), fl.n-c<<flatChunkBits)
+		for _, h := range chunk[:max(end, 0)] {
+			if h != 0 {
+				hs = append(hs, h)
+			}
+		}
+	}
+	slices.Sort(hs)
+	var distinct, s int64
+	for i := 0; i < len(hs); {
+		j := i + 1
+		for j < len(hs) && hs[j] == hs[i] {
+			j++
+		}
+		distinct++
+		s += clogc(int64(j - i))
+		i = j
+	}
+	f.distinct, f.s = distinct, s
+	fl.settled = m.st.n
+}
+
+// settleAll settles every flat field, side by side: before a snapshot or
+// an export reads their figures.
+func (m *Model) settleAll() {
+	var flat []*field
+	for _, f := range m.fields {
+		if f.flat != nil && f.flat.settled != m.st.n {
+			flat = append(flat, f)
+		}
+	}
+	spread(parallelMin*len(flat), len(flat), func(i int) { m.settle(flat[i]) })
+}
+
+// unflatten turns flat field idx back into a hashed identifier with a
+// table: its ids are made by replaying the list in record order, written
+// to the store's column, and its history placeholders filled.
+func (m *Model) unflatten(idx int) {
+	f := m.fields[idx]
+	fl := f.flat
+	if fl == nil {
+		return
+	}
+	f.flat = nil
+	f.byHash = newHashTable(int(f.distinct))
+	f.counts = []int32{0}
+	f.distinct, f.s = 0, 0
+	var present int64
+	notes := fl.notes
+	var noted []float64
+	ids := make([]uint32, m.st.n)
+	for r := range ids {
+		h, l := fl.at(r)
+		if h != 0 {
+			id := probe(f.byHash, h, &f.ids)
+			if id == 0 {
+				id = uint32(len(f.counts))
+				f.counts = append(f.counts, 0)
+				f.ids.set(id, h, int32(l))
+				f.byHash.insert(h, id)
+			}
+			c := f.counts[id]
+			if c == 0 {
+				f.distinct++
+			}
+			f.s += clogc(int64(c)+1) - clogc(int64(c))
+			f.counts[id] = c + 1
+			ids[r] = id
+			present++
+		}
+		for len(notes) > 0 && notes[0] == r+1 {
+			noted = append(noted, entropyFromS(int64(r+1), f.s+clogc(int64(r+1)-present)))
+			notes = notes[1:]
+		}
+	}
+	m.st.setColumn(idx, 0, ids)
+	// The placeholders are the last NaNs of the history, in order.
+	if h := m.base.hist[f.name]; len(noted) > 0 {
+		for i, j := len(h)-1, len(noted)-1; i >= 0 && j >= 0; i-- {
+			if math.IsNaN(h[i]) {
+				h[i] = noted[j]
+				j--
+			}
+		}
+	}
+}
+
+// unflattenAll unflattens every flat field: before the store's columns are
+// read whole (Rebuild, WithWindow).
+func (m *Model) unflattenAll() {
+	for i, f := range m.fields {
+		if f.flat != nil {
+			m.unflatten(i)
+		}
+	}
+}
+
+// capFlat unflattens the flat fields that k more records could take to
+// MaxDistinct values, past which a new value overflows: a decision made
+// value by value, which needs the table.
+func (m *Model) capFlat(k int) {
+	for i, f := range m.fields {
+		if f.flat != nil && int(f.present)+k > m.opt.MaxDistinct {
+			m.unflatten(i)
+		}
+	}
+}
+
+// reclassifyFlat applies the identifier rule's exit test to flat field idx
+// with counts exact enough to decide it, unflattening the field when it
+// may leave (see above). It runs before reclassify reads the counts.
+func (m *Model) reclassifyFlat(idx int) {
+	f := m.fields[idx]
+	if float64(f.distinct) >= identLeave*float64(f.present) {
+		return // the lower bound proves the share high enough
+	}
+	m.settle(f)
+	if float64(f.distinct) < flatLeave*float64(f.present) {
+		m.unflatten(idx)
+	}
+}
