@@ -346,11 +346,7 @@ func (m *Model) untrack(idx int) {
 // reclassify applies the identifier rule with hysteresis, moving fields in
 // and out of pair tracking.
 func (m *Model) reclassify() {
-	for i, f := range m.fields {
-		if f.flat != nil {
-			m.reclassifyFlat(i)
-		}
-	}
+	m.reclassifyFlat()
 	for i, f := range m.fields {
 		ratio := float64(f.distinct+f.overflowed) / math.Max(1, float64(f.present))
 		switch {
