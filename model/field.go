@@ -24,7 +24,7 @@ const overflow = ^uint32(0)
 type field struct {
 	name    string
 	index   int
-	values  map[string]uint32
+	values  *hashTable // ids by text (textHash, probeText); nil once hashed
 	text    []string
 	counts  []int32
 	free    []uint32
@@ -67,7 +67,7 @@ func newField(name string, index int) *field {
 	return &field{
 		name:   name,
 		index:  index,
-		values: make(map[string]uint32),
+		values: newHashTable(0),
 		text:   []string{""},
 		counts: []int32{0},
 	}
@@ -88,8 +88,9 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if f.byHash != nil {
 		return f.addHashed(v, maxDistinct)
 	}
-	id, ok := f.values[string(v)]
-	if !ok {
+	h := textHash(v)
+	id := probeText(f.values, h, v, f.text)
+	if id == 0 {
 		if f.ident && maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
 			f.present++
@@ -105,7 +106,7 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 			f.text = append(f.text, string(v))
 			f.counts = append(f.counts, 0)
 		}
-		f.values[f.text[id]] = id
+		f.values.insert(h, id)
 	}
 	c := f.counts[id]
 	if c == 0 {
@@ -146,7 +147,7 @@ func (f *field) remove(id uint32) {
 	f.valueBytes -= int64(len(f.text[id]))
 	if c == 1 {
 		f.distinct--
-		delete(f.values, f.text[id])
+		f.values.remove(textHash([]byte(f.text[id])), id)
 		f.text[id] = ""
 		f.free = append(f.free, id)
 	}
@@ -199,7 +200,7 @@ func (f *field) hashValues() {
 	if f.byHash != nil {
 		return
 	}
-	f.byHash = newHashTable(len(f.values))
+	f.byHash = newHashTable(f.values.len())
 	// By id, not over the map, so that the samples kept do not depend on
 	// the map's random order.
 	for id, v := range f.text {
@@ -215,6 +216,16 @@ func (f *field) hashValues() {
 	}
 	f.text = nil // hashed fields keep no text: text[id] is never read
 	f.values = nil
+}
+
+// idOf returns the id of value v, if the field keeps its text and has it.
+func (f *field) idOf(v string) (uint32, bool) {
+	if f.values == nil {
+		return 0, false
+	}
+	b := []byte(v)
+	id := probeText(f.values, textHash(b), b, f.text)
+	return id, id != 0
 }
 
 // stats returns n-record figures: entropy (plug-in), cells (non-empty values

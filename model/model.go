@@ -3,6 +3,7 @@ package model
 import (
 	"context"
 	"math"
+	"sync/atomic"
 	"time"
 
 	"bitsift/parse"
@@ -99,6 +100,8 @@ type Model struct {
 
 	sinceReclass int
 	batch        batchState
+	// denseSpare is the room left for sparse pair matrices (cellmap.go).
+	denseSpare atomic.Int64
 	// lastDetWork is the work the last determinant search did (tests).
 	lastDetWork int
 
@@ -113,12 +116,14 @@ type Model struct {
 
 // New returns an empty model.
 func New(opt Options) *Model {
-	return &Model{
+	m := &Model{
 		opt:     opt.withDefaults(),
 		byName:  make(map[string]int),
 		pairAt:  make(map[[2]int]int),
 		leftOut: make(map[string]struct{}),
 	}
+	m.denseSpare.Store(denseSpare)
+	return m
 }
 
 // Window is the window the model covers.
@@ -299,7 +304,9 @@ func (m *Model) track(idx int) {
 		}
 		a, b := min(idx, j), max(idx, j)
 		m.pairAt[[2]int{a, b}] = len(m.pairs)
-		m.pairs = append(m.pairs, pair{a: a, b: b, m: newCellMap()})
+		cm := newCellMap()
+		cm.budget = &m.denseSpare
+		m.pairs = append(m.pairs, pair{a: a, b: b, m: cm})
 		added = append(added, len(m.pairs)-1)
 	}
 	if len(added) == 0 || m.st.n == 0 {
@@ -333,6 +340,8 @@ func (m *Model) untrack(idx int) {
 	for _, p := range m.pairs {
 		if p.a != idx && p.b != idx {
 			kept = append(kept, p)
+		} else {
+			p.m.release()
 		}
 	}
 	clear(m.pairs[len(kept):])

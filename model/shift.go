@@ -124,7 +124,7 @@ func (m *Model) valueBuckets(f *field, bp *FieldProfile) (base, now []float64) {
 	for _, v := range bp.Top {
 		seen[v.Value] = true
 		c := 0
-		if id, ok := f.values[v.Value]; ok {
+		if id, ok := f.idOf(v.Value); ok {
 			c = int(f.counts[id])
 		}
 		base = append(base, float64(v.Count))

@@ -1,5 +1,11 @@
 package model
 
+import (
+	"encoding/binary"
+	"hash/maphash"
+	"math/bits"
+)
+
 // hashTable maps the 64-bit keyed hashes of an identifier field's values to
 // their ids. It is an open-addressing table with linear probing and
 // backward-shift deletion, so a value leaving the window takes its entry out
@@ -168,3 +174,51 @@ func (c *idChunks) set(id uint32, h uint64, l int32) {
 
 // bytes is the memory the chunks hold.
 func (c *idChunks) bytes() int { return len(c.h) << idChunkBits * 12 }
+
+// Text tables. A field that keeps its values' text finds their ids with a
+// hashTable too, keyed by textHash, the text itself compared on a tag
+// match (probeText). It replaced a Go map[string]uint32, which cost about
+// 40% of the model's interning: the map's small-map path compares a key
+// with each of up to eight entries, and its hash is the general one, where
+// textHash mixes a short value's bytes in two loads and a multiply.
+
+// textSeed keys textHash for this process, so that values chosen to
+// collide in one run do not collide in another.
+var textSeed = maphash.Bytes(maphash.MakeSeed(), nil) | 1
+
+// textHash hashes a value for a text table: values of up to 16 bytes by
+// two overlapping loads mixed with a 128-bit multiply (after wyhash's
+// construction), longer ones with maphash.
+func textHash(v []byte) uint64 {
+	n := len(v)
+	var a, b uint64
+	switch {
+	case n > 16:
+		return maphash.Bytes(hashSeed, v)
+	case n >= 8:
+		a, b = binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])
+	case n >= 4:
+		a, b = uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))
+	case n > 0:
+		a = uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1])
+	}
+	hi, lo := bits.Mul64(a^textSeed^uint64(n)<<56, b^0x9E3779B97F4A7C15)
+	hi, lo = bits.Mul64(hi^lo, textSeed^0xD6E8FEB86659FD93)
+	return hi ^ lo
+}
+
+// probeText returns the id whose text is v (h = textHash(v)), or 0.
+func probeText(t *hashTable, h uint64, v []byte, text []string) uint32 {
+	tag := h >> 32
+	i := t.home(h)
+	for {
+		s := t.slots[i]
+		if s == 0 {
+			return 0
+		}
+		if s>>32 == tag && text[uint32(s)] == string(v) {
+			return uint32(s)
+		}
+		i = (i + 1) & t.mask
+	}
+}
