@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"reflect"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -243,6 +244,9 @@ func TestHeadlessIdentifiersMatchTable(t *testing.T) {
 		stream := randomStream(r, 12000)
 		for i := 3000; i < len(stream); i++ { // unique values only at first
 			stream[i].kv["manifest"] = "m" + strconv.Itoa(r.IntN(5))
+		}
+		for i := 0; i < 3000; i += 7 { // some longer than a list's length byte holds
+			stream[i].kv["manifest"] += strings.Repeat("x", 250+i%20)
 		}
 		table := New(Options{Window: all})
 		batched := New(Options{Window: all, Headless: true})

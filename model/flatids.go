@@ -8,7 +8,7 @@ import "math"
 // values as one 64-bit hash per record, in record order, instead of a hash
 // table of its distinct values: appending costs nothing like a probe into a
 // table of a million entries (a cache miss each, and the table's doublings),
-// and the list costs 12 bytes a record against about 36. The exact figures
+// and the list costs 9 bytes a record against about 36. The exact figures
 // (distinct values, Σ c·log c) come from sorting a copy of the list when a
 // snapshot asks (settle).
 //
@@ -45,10 +45,13 @@ const (
 
 // flatIDs is a flat identifier's list: the hash and length of the value of
 // store record r, or 0 when the record lacks the field. Chunks never move,
-// so the list grows without copying.
+// so the list grows without copying. A length takes a byte; those of 255
+// and more are in long (a stand-in made by unflatten for a replay keeps
+// its value's length, see replayValue).
 type flatIDs struct {
-	h [][]uint64
-	l [][]uint32
+	h    [][]uint64
+	l    [][]uint8
+	long map[int]uint32
 	n int // records listed (later ones lack the field)
 	// settled: f.distinct and f.s are exact for the first settled records.
 	settled int
@@ -72,10 +75,17 @@ func flatHash(h uint64) uint64 {
 func (fl *flatIDs) put(r int, h uint64, l int) {
 	for r>>flatChunkBits >= len(fl.h) {
 		fl.h = append(fl.h, make([]uint64, 1<<flatChunkBits))
-		fl.l = append(fl.l, make([]uint32, 1<<flatChunkBits))
+		fl.l = append(fl.l, make([]uint8, 1<<flatChunkBits))
 	}
 	fl.h[r>>flatChunkBits][r&flatChunkMask] = h
-	fl.l[r>>flatChunkBits][r&flatChunkMask] = uint32(l)
+	if l >= 255 {
+		if fl.long == nil {
+			fl.long = map[int]uint32{}
+		}
+		fl.long[r] = uint32(l)
+		l = 255
+	}
+	fl.l[r>>flatChunkBits][r&flatChunkMask] = uint8(l)
 	fl.n = max(fl.n, r+1)
 }
 
@@ -83,7 +93,11 @@ func (fl *flatIDs) at(r int) (uint64, uint32) {
 	if r >= fl.n {
 		return 0, 0
 	}
-	return fl.h[r>>flatChunkBits][r&flatChunkMask], fl.l[r>>flatChunkBits][r&flatChunkMask]
+	l := uint32(fl.l[r>>flatChunkBits][r&flatChunkMask])
+	if l == 255 {
+		l = fl.long[r]
+	}
+	return fl.h[r>>flatChunkBits][r&flatChunkMask], l
 }
 
 // flatOK says whether this model may keep identifiers as lists.
@@ -255,45 +269,89 @@ func (m *Model) reclassifyFlat() {
 	}
 }
 
-// sortHashes sorts hs. It is a least-significant-digit radix sort, 11 bits
-// a pass, written here because a comparison sort (slices.Sort) of a
-// million hashes took 5–10 times as long, and settling sorts every flat
-// identifier's list: six passes over the keys, with the six histograms
-// counted in one pass before.
+// sortHashes sorts hs. It is a radix sort, written here because a
+// comparison sort (slices.Sort) of a million hashes took 5–10 times as
+// long, and settling sorts every flat identifier's list. One pass in place
+// on the top 8 bits (an American flag sort: each key swapped into its
+// bucket), then each bucket sorted least-significant digit first, 14 bits
+// a pass, through a scratch buffer the size of the largest bucket: about
+// 1/256 of the keys, as hashes spread evenly, where a plain LSD sort would
+// need a second array as large as the first.
 func sortHashes(hs []uint64) {
-	const bits, passes = 11, 6
 	if len(hs) < 256 {
-		for i := 1; i < len(hs); i++ { // insertion sort
-			for j := i; j > 0 && hs[j] < hs[j-1]; j-- {
-				hs[j], hs[j-1] = hs[j-1], hs[j]
-			}
-		}
+		insertionSort(hs)
 		return
 	}
-	var counts [passes][1 << bits]int
+	var count, next [256]int
 	for _, h := range hs {
-		for p := range passes {
-			counts[p][h>>(p*bits)&(1<<bits-1)]++
+		count[h>>56]++
+	}
+	end := [256]int{}
+	sum, widest := 0, 0
+	for d, c := range count {
+		next[d] = sum
+		sum += c
+		end[d] = sum
+		widest = max(widest, c)
+	}
+	for d := range 256 {
+		for next[d] < end[d] {
+			h := hs[next[d]]
+			for t := int(h >> 56); t != d; t = int(h >> 56) {
+				hs[next[t]], h = h, hs[next[t]]
+				next[t]++
+			}
+			hs[next[d]] = h
+			next[d]++
 		}
 	}
-	src, dst := hs, make([]uint64, len(hs))
+	scratch := make([]uint64, widest)
+	lo := 0
+	for d := range 256 {
+		sortLow(hs[lo:end[d]], scratch)
+		lo = end[d]
+	}
+}
+
+// sortLow sorts hs, whose keys share their top 8 bits, least-significant
+// digit first through scratch (at least as long as hs).
+func sortLow(hs, scratch []uint64) {
+	const bits, passes = 14, 4 // 56 bits
+	if len(hs) < 256 {
+		insertionSort(hs)
+		return
+	}
+	src, dst := hs, scratch[:len(hs)]
+	var counts [1 << bits]int
 	for p := range passes {
-		c := &counts[p]
-		if c[hs[0]>>(p*bits)&(1<<bits-1)] == len(hs) {
+		shift := p * bits
+		clear(counts[:])
+		for _, h := range src {
+			counts[h>>shift&(1<<bits-1)]++
+		}
+		if counts[src[0]>>shift&(1<<bits-1)] == len(src) {
 			continue // every key has the same digit here
 		}
 		sum := 0
-		for d := range c {
-			c[d], sum = sum, sum+c[d]
+		for d, c := range counts {
+			counts[d], sum = sum, sum+c
 		}
 		for _, h := range src {
-			d := h >> (p * bits) & (1<<bits - 1)
-			dst[c[d]] = h
-			c[d]++
+			d := h >> shift & (1<<bits - 1)
+			dst[counts[d]] = h
+			counts[d]++
 		}
 		src, dst = dst, src
 	}
 	if &src[0] != &hs[0] {
 		copy(hs, src)
+	}
+}
+
+func insertionSort(hs []uint64) {
+	for i := 1; i < len(hs); i++ {
+		for j := i; j > 0 && hs[j] < hs[j-1]; j-- {
+			hs[j], hs[j-1] = hs[j-1], hs[j]
+		}
 	}
 }
