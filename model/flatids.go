@@ -1,6 +1,9 @@
 package model
 
-import "math"
+import (
+	"math"
+	"math/bits"
+)
 
 // Identifiers as a list of hashes. A headless run (Options.Headless: a
 // report or a plan, which take one snapshot at the end) over the whole
@@ -134,30 +137,42 @@ func (m *Model) flatten(idx int) {
 }
 
 // settle makes f.distinct and f.s exact for the window (a flat field's).
+// Equal values have equal hashes, so the list is taken a slice of the hash
+// space at a time (by the top bits: a value's records all fall in one
+// slice), each slice gathered, sorted and its runs counted: the copy is a
+// sixteenth of the list or less, not the list.
 func (m *Model) settle(f *field) {
 	fl := f.flat
 	if fl == nil || fl.settled == m.st.n {
 		return
 	}
-	hs := make([]uint64, 0, f.present)
-	for c, chunk := range fl.h {
-		end := min(len(chunk), fl.n-c<<flatChunkBits)
-		for _, h := range chunk[:max(end, 0)] {
-			if h != 0 {
-				hs = append(hs, h)
+	slices := 1
+	for slices < 256 && int(f.present)/slices > 1<<16 {
+		slices *= 2
+	}
+	shift := 64 - bits.Len(uint(slices-1))
+	var buf []uint64
+	var distinct, s int64
+	for sl := range slices {
+		buf = buf[:0]
+		for c, chunk := range fl.h {
+			end := min(len(chunk), fl.n-c<<flatChunkBits)
+			for _, h := range chunk[:max(end, 0)] {
+				if h != 0 && (slices == 1 || int(h>>shift) == sl) {
+					buf = append(buf, h)
+				}
 			}
 		}
-	}
-	sortHashes(hs)
-	var distinct, s int64
-	for i := 0; i < len(hs); {
-		j := i + 1
-		for j < len(hs) && hs[j] == hs[i] {
-			j++
+		sortHashes(buf)
+		for i := 0; i < len(buf); {
+			j := i + 1
+			for j < len(buf) && buf[j] == buf[i] {
+				j++
+			}
+			distinct++
+			s += clogc(int64(j - i))
+			i = j
 		}
-		distinct++
-		s += clogc(int64(j - i))
-		i = j
 	}
 	f.distinct, f.s = distinct, s
 	fl.settled = m.st.n

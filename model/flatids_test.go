@@ -3,7 +3,11 @@ package model
 import (
 	"math/rand/v2"
 	"slices"
+	"strconv"
 	"testing"
+	"time"
+
+	"bitsift/parse"
 )
 
 // TestSortHashes checks the radix sort against the standard library's
@@ -23,5 +27,29 @@ func TestSortHashes(t *testing.T) {
 				t.Fatalf("n=%d mask=%x: not sorted as slices.Sort sorts", n, mask)
 			}
 		}
+	}
+}
+
+// TestSettleSlices: a flat identifier of 200,000 records (settled in
+// slices of its hash space) has the figures of the same identifier kept
+// in a table, on values that repeat (a value every 150,000 records).
+func TestSettleSlices(t *testing.T) {
+	all := Window{Kind: WindowAll}
+	flat, table := New(Options{Window: all, Headless: true}), New(Options{Window: all})
+	var rec parse.Record
+	for i := range 200_000 {
+		rec.Reset()
+		rec.AddString("id", "v"+strconv.Itoa(i%150_000))
+		rec.AddString("level", []string{"info", "warn"}[i%2])
+		flat.Add(&rec, int64(i), int64(i))
+		table.Add(&rec, int64(i), int64(i))
+	}
+	if flat.fields[0].flat == nil {
+		t.Fatal("the identifier was not listed")
+	}
+	got, want := flat.Snapshot(SnapshotOptions{}), table.Snapshot(SnapshotOptions{})
+	got.Taken, want.Taken = time.Time{}, time.Time{}
+	if err := sameSnapshot(got, want); err != "" {
+		t.Fatal(err)
 	}
 }
