@@ -253,7 +253,7 @@ func (m *cellMap) dec(k uint64) {
 			if c == 0 {
 				panic("model: cellMap.dec of an empty cell")
 			}
-			m.s += clogc(int64(c)-1) - clogc(int64(c))
+			m.s -= up(int64(c) - 1)
 			m.dense[j] = c - 1
 			if c == 1 {
 				m.len--
@@ -269,7 +269,7 @@ func (m *cellMap) dec(k uint64) {
 		i = (i + 1) & m.mask
 	}
 	c := m.counts[i]
-	m.s += clogc(int64(c)-1) - clogc(int64(c))
+	m.s -= up(int64(c) - 1)
 	if c > 1 {
 		m.counts[i] = c - 1
 		return

@@ -57,6 +57,10 @@ type field struct {
 	synth *Synthetic
 	// timestamp: the stream's time field, never tracked (SetTimestamp).
 	timestamp bool
+	// big memoises c·log c of two counts past the table's first chunk
+	// (see up); bigOld is the slot to replace on a miss.
+	bigC, bigS [2]int64
+	bigOld     int
 	// ident: the field is classified an identifier (with hysteresis);
 	// identRounds counts the reclassifications it has stayed one.
 	ident       bool
@@ -112,7 +116,7 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.s += f.up(int64(c))
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(len(f.text[id]))
@@ -132,7 +136,7 @@ func (f *field) remove(id uint32) {
 		return
 	}
 	c := f.counts[id]
-	f.s += clogc(int64(c)-1) - clogc(int64(c))
+	f.s -= up(int64(c) - 1)
 	f.counts[id] = c - 1
 	f.present--
 	if f.byHash != nil {
@@ -181,11 +185,37 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.s += f.up(int64(c))
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(f.ids.length(id))
 	return id
+}
+
+// up is clogc(c+1) − clogc(c), the change of s when a value of count c
+// gains a record. Past the table's first chunk it computes c·log c and
+// memoises the two counts it last reached: a value that keeps gaining
+// records (a constant field's, the commonest level's) then costs one
+// logarithm a record, where the shared table would hold 8 bytes for every
+// count up to the largest (8 MB for a million records of one value).
+func (f *field) up(c int64) int64 {
+	if c+1 < chunkSize {
+		return clogc0[c+1] - clogc0[c]
+	}
+	i := f.bigOld
+	switch c {
+	case f.bigC[0]:
+		i = 0
+	case f.bigC[1]:
+		i = 1
+	default:
+		f.bigC[i], f.bigS[i] = c, clogc(c)
+	}
+	next := clogcSlow(c + 1)
+	d := next - f.bigS[i]
+	f.bigC[i], f.bigS[i] = c+1, next
+	f.bigOld = 1 - i
+	return d
 }
 
 // hashBytes is the keyed hash of an identifier's value.
