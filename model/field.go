@@ -1,6 +1,9 @@
 package model
 
-import "hash/maphash"
+import (
+	"hash/maphash"
+	"slices"
+)
 
 // hashSeed keys the value hashes of identifier fields for this process.
 var hashSeed = maphash.MakeSeed()
@@ -19,7 +22,7 @@ const overflow = ^uint32(0)
 // Invariants: counts[id] is the number of window records whose value id for
 // this field is id (id ≥ 1); counts[0] is unused (absent records are
 // n − present); present == Σ counts[id≥1] + overflowed; distinct is the number
-// of ids with counts[id] > 0; s == Σ clogc(counts[id]); ids with a zero count
+// of ids with counts[id] > 0; s + Σ clogc(counts[id]) over big == Σ clogc(counts[id]) (see up); ids with a zero count
 // are on free and not in values.
 type field struct {
 	name    string
@@ -57,10 +60,9 @@ type field struct {
 	synth *Synthetic
 	// timestamp: the stream's time field, never tracked (SetTimestamp).
 	timestamp bool
-	// big memoises c·log c of two counts past the table's first chunk
-	// (see up); bigOld is the slot to replace on a miss.
-	bigC, bigS [2]int64
-	bigOld     int
+	// big lists the values counted chunkSize times or more, whose terms
+	// s leaves out (see up).
+	big []uint32
 	// ident: the field is classified an identifier (with hysteresis);
 	// identRounds counts the reclassifications it has stayed one.
 	ident       bool
@@ -116,7 +118,7 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += f.up(int64(c))
+	f.s += f.up(int64(c), id)
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(len(f.text[id]))
@@ -136,7 +138,7 @@ func (f *field) remove(id uint32) {
 		return
 	}
 	c := f.counts[id]
-	f.s -= up(int64(c) - 1)
+	f.s += f.down(int64(c), id)
 	f.counts[id] = c - 1
 	f.present--
 	if f.byHash != nil {
@@ -185,37 +187,52 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += f.up(int64(c))
+	f.s += f.up(int64(c), id)
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(f.ids.length(id))
 	return id
 }
 
-// up is clogc(c+1) − clogc(c), the change of s when a value of count c
-// gains a record. Past the table's first chunk it computes c·log c and
-// memoises the two counts it last reached: a value that keeps gaining
-// records (a constant field's, the commonest level's) then costs one
-// logarithm a record, where the shared table would hold 8 bytes for every
-// count up to the largest (8 MB for a million records of one value).
-func (f *field) up(c int64) int64 {
-	if c+1 < chunkSize {
+// up is the change of s when value id, of count c, gains a record. s
+// sums c·log c over the values counted under the table's first chunk
+// only; a value reaching chunkSize moves to big, whose terms sum adds when
+// asked. So a value that keeps gaining records (a constant field's, the
+// commonest level's) costs nothing per record past the chunk, where
+// looking its terms up would hold 8 bytes of table for every count up to
+// the largest (8 MB for a million records of one value) and computing them
+// a logarithm a record.
+func (f *field) up(c int64, id uint32) int64 {
+	switch {
+	case c+1 < chunkSize:
 		return clogc0[c+1] - clogc0[c]
+	case c+1 == chunkSize:
+		f.big = append(f.big, id)
+		return -clogc0[c]
 	}
-	i := f.bigOld
-	switch c {
-	case f.bigC[0]:
-		i = 0
-	case f.bigC[1]:
-		i = 1
-	default:
-		f.bigC[i], f.bigS[i] = c, clogc(c)
+	return 0
+}
+
+// down is the change of s when value id, of count c, loses a record.
+func (f *field) down(c int64, id uint32) int64 {
+	switch {
+	case c < chunkSize:
+		return clogc0[c-1] - clogc0[c]
+	case c == chunkSize:
+		i := slices.Index(f.big, id)
+		f.big = slices.Delete(f.big, i, i+1)
+		return clogc0[c-1]
 	}
-	next := clogcSlow(c + 1)
-	d := next - f.bigS[i]
-	f.bigC[i], f.bigS[i] = c+1, next
-	f.bigOld = 1 - i
-	return d
+	return 0
+}
+
+// sum is Σ c·log c over the field's values (see up).
+func (f *field) sum() int64 {
+	s := f.s
+	for _, id := range f.big {
+		s += clogc(int64(f.counts[id]))
+	}
+	return s
 }
 
 // hashBytes is the keyed hash of an identifier's value.
@@ -262,7 +279,7 @@ func (f *field) idOf(v string) (uint32, bool) {
 // including absent) and whether they are estimates.
 func (f *field) entropy(n int64) (h float64, cells int64, estimate bool) {
 	a := n - f.present
-	s := f.s + clogc(a) // overflow values count once each: clogc(1) == 0
+	s := f.sum() + clogc(a) // overflow values count once each: clogc(1) == 0
 	cells = f.distinct + f.overflowed
 	if a > 0 {
 		cells++

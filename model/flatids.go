@@ -55,7 +55,7 @@ type flatIDs struct {
 	h    [][]uint64
 	l    [][]uint8
 	long map[int]uint32
-	n int // records listed (later ones lack the field)
+	n    int // records listed (later ones lack the field)
 	// settled: f.distinct and f.s are exact for the first settled records.
 	settled int
 	// notes are the store sizes at which noteEntropies left a NaN in the
@@ -131,6 +131,7 @@ func (m *Model) flatten(idx int) {
 		}
 	}
 	fl.settled = m.st.n
+	f.s, f.big = f.sum(), nil // the list keeps no counts: s is whole
 	m.st.dropColumn(idx)
 	f.flat = fl
 	f.byHash, f.ids, f.counts, f.free = nil, idChunks{}, nil, nil
@@ -221,13 +222,13 @@ func (m *Model) unflatten(idx int) {
 			if c == 0 {
 				f.distinct++
 			}
-			f.s += clogc(int64(c)+1) - clogc(int64(c))
+			f.s += f.up(int64(c), id)
 			f.counts[id] = c + 1
 			ids[r] = id
 			present++
 		}
 		for len(notes) > 0 && notes[0] == r+1 {
-			noted = append(noted, entropyFromS(int64(r+1), f.s+clogc(int64(r+1)-present)))
+			noted = append(noted, entropyFromS(int64(r+1), f.sum()+clogc(int64(r+1)-present)))
 			notes = notes[1:]
 		}
 	}

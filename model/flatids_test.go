@@ -1,6 +1,7 @@
 package model
 
 import (
+	"math"
 	"math/rand/v2"
 	"slices"
 	"strconv"
@@ -51,5 +52,49 @@ func TestSettleSlices(t *testing.T) {
 	got.Taken, want.Taken = time.Time{}, time.Time{}
 	if err := sameSnapshot(got, want); err != "" {
 		t.Fatal(err)
+	}
+}
+
+// TestBigCountsCrossChunk: values whose counts pass chunkSize and fall
+// back under it (a window of 70,000 records, a value that fills it and
+// then fades) keep the field's entropy equal to a plain count's
+// (EntropyOfCounts) and to Add's one by one.
+func TestBigCountsCrossChunk(t *testing.T) {
+	w := Window{Kind: WindowRecords, Records: 70_000}
+	batched, single := New(Options{Window: w}), New(Options{Window: w})
+	var recs []*parse.Record
+	var lines []int64
+	check := func(at int) {
+		got, want := batched.Snapshot(SnapshotOptions{}), single.Snapshot(SnapshotOptions{})
+		got.Taken, want.Taken = time.Time{}, time.Time{}
+		if err := sameSnapshot(got, want); err != "" {
+			t.Fatalf("at %d: %s", at, err)
+		}
+		f := batched.fields[batched.byName["tide"]]
+		counts := []int{int(int64(batched.st.n) - f.present)}
+		for _, c := range f.counts[1:] {
+			counts = append(counts, int(c))
+		}
+		if h := EntropyOfCounts(counts); math.Abs(h-got.Fields[batched.byName["tide"]].Entropy) > 1e-9 {
+			t.Fatalf("at %d: H(tide) = %v, counted %v", at, got.Fields[batched.byName["tide"]].Entropy, h)
+		}
+	}
+	for i := range 200_000 {
+		rec := &parse.Record{}
+		v := "high"
+		if i > 90_000 && i%3 != 0 { // fades from the window after record 90,000
+			v = "low" + strconv.Itoa(i%2)
+		}
+		rec.AddString("tide", v)
+		rec.AddString("port", "north")
+		recs, lines = append(recs, rec), append(lines, int64(i))
+		single.Add(rec, int64(i), int64(i))
+		if len(recs) == 1000 {
+			batched.AddBatch(recs, lines, lines)
+			recs, lines = recs[:0], lines[:0]
+			if i%20_000 == 19_999 {
+				check(i)
+			}
+		}
 	}
 }
