@@ -28,6 +28,7 @@ type field struct {
 	name    string
 	index   int
 	values  *hashTable // ids by text (textHash, probeText); nil once hashed
+	words   []wordKey  // words[id]: text[id]'s, when 16 bytes or shorter
 	text    []string
 	counts  []int32
 	free    []uint32
@@ -75,6 +76,7 @@ func newField(name string, index int) *field {
 		index:  index,
 		values: newHashTable(0),
 		text:   []string{""},
+		words:  []wordKey{{}},
 		counts: []int32{0},
 	}
 }
@@ -94,8 +96,8 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if f.byHash != nil {
 		return f.addHashed(v, maxDistinct)
 	}
-	h := textHash(v)
-	id := probeText(f.values, h, v, f.text)
+	h, k := textHash(v)
+	id := probeText(f.values, h, k, v, f.text, f.words)
 	if id == 0 {
 		if f.ident && maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
@@ -107,9 +109,11 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 			id = f.free[n-1]
 			f.free = f.free[:n-1]
 			f.text[id] = string(v)
+			f.words[id] = k
 		} else {
 			id = uint32(len(f.text))
 			f.text = append(f.text, string(v))
+			f.words = append(f.words, k)
 			f.counts = append(f.counts, 0)
 		}
 		f.values.insert(h, id)
@@ -153,7 +157,8 @@ func (f *field) remove(id uint32) {
 	f.valueBytes -= int64(len(f.text[id]))
 	if c == 1 {
 		f.distinct--
-		f.values.remove(textHash([]byte(f.text[id])), id)
+		h, _ := textHash([]byte(f.text[id]))
+		f.values.remove(h, id)
 		f.text[id] = ""
 		f.free = append(f.free, id)
 	}
@@ -262,7 +267,7 @@ func (f *field) hashValues() {
 		}
 	}
 	f.text = nil // hashed fields keep no text: text[id] is never read
-	f.values = nil
+	f.values, f.words = nil, nil
 }
 
 // idOf returns the id of value v, if the field keeps its text and has it.
@@ -271,7 +276,8 @@ func (f *field) idOf(v string) (uint32, bool) {
 		return 0, false
 	}
 	b := []byte(v)
-	id := probeText(f.values, textHash(b), b, f.text)
+	h, k := textHash(b)
+	id := probeText(f.values, h, k, b, f.text, f.words)
 	return id, id != 0
 }
 

@@ -98,3 +98,27 @@ func TestBigCountsCrossChunk(t *testing.T) {
 		}
 	}
 }
+
+// TestWordKeyTellsShortValues: two values of the same length up to 16
+// bytes have the same wordKey only if they are equal (every byte is in
+// one of the two words), so probeText may compare words for them; values
+// differing in any one byte, at every position, get different keys.
+func TestWordKeyTellsShortValues(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	for n := 0; n <= 16; n++ {
+		for range 200 {
+			v := make([]byte, n)
+			for i := range v {
+				v[i] = byte(r.IntN(256))
+			}
+			_, k := textHash(v)
+			for i := range v {
+				w := slices.Clone(v)
+				w[i] ^= byte(1 + r.IntN(255))
+				if _, k2 := textHash(w); k2 == k {
+					t.Fatalf("%q and %q (length %d) share a word key", v, w, n)
+				}
+			}
+		}
+	}
+}

@@ -186,15 +186,20 @@ func (c *idChunks) bytes() int { return len(c.h) << idChunkBits * 12 }
 // collide in one run do not collide in another.
 var textSeed = maphash.Bytes(maphash.MakeSeed(), nil) | 1
 
+// wordKey is a value of up to 16 bytes as the two words textHash loads:
+// with its length, it tells the value exactly (the loads cover every byte),
+// so a short value is compared in two word compares, not a call.
+type wordKey struct{ a, b uint64 }
+
 // textHash hashes a value for a text table: values of up to 16 bytes by
-// two overlapping loads mixed with a 128-bit multiply (after wyhash's
-// construction), longer ones with maphash.
-func textHash(v []byte) uint64 {
+// two overlapping loads (returned as its wordKey) mixed with a 128-bit
+// multiply (after wyhash's construction), longer ones with maphash.
+func textHash(v []byte) (uint64, wordKey) {
 	n := len(v)
 	var a, b uint64
 	switch {
 	case n > 16:
-		return maphash.Bytes(hashSeed, v)
+		return maphash.Bytes(hashSeed, v), wordKey{}
 	case n >= 8:
 		a, b = binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])
 	case n >= 4:
@@ -204,20 +209,29 @@ func textHash(v []byte) uint64 {
 	}
 	hi, lo := bits.Mul64(a^textSeed^uint64(n)<<56, b^0x9E3779B97F4A7C15)
 	hi, lo = bits.Mul64(hi^lo, textSeed^0xD6E8FEB86659FD93)
-	return hi ^ lo
+	return hi ^ lo, wordKey{a, b}
 }
 
-// probeText returns the id whose text is v (h = textHash(v)), or 0.
-func probeText(t *hashTable, h uint64, v []byte, text []string) uint32 {
+// probeText returns the id whose text is v (h, k = textHash(v)), or 0;
+// words[id] is id's wordKey.
+func probeText(t *hashTable, h uint64, k wordKey, v []byte, text []string, words []wordKey) uint32 {
 	tag := h >> 32
 	i := t.home(h)
+	short := len(v) <= 16
 	for {
 		s := t.slots[i]
 		if s == 0 {
 			return 0
 		}
-		if s>>32 == tag && text[uint32(s)] == string(v) {
-			return uint32(s)
+		if s>>32 == tag {
+			id := uint32(s)
+			if short {
+				if len(text[id]) == len(v) && words[id] == k {
+					return id
+				}
+			} else if text[id] == string(v) {
+				return id
+			}
 		}
 		i = (i + 1) & t.mask
 	}
