@@ -140,15 +140,16 @@ func (m *Model) flatten(idx int) {
 // settle makes f.distinct and f.s exact for the window (a flat field's).
 // Equal values have equal hashes, so the list is taken a slice of the hash
 // space at a time (by the top bits: a value's records all fall in one
-// slice), each slice gathered, sorted and its runs counted: the copy is a
-// sixteenth of the list or less, not the list.
+// slice), each slice gathered, sorted and its runs counted: the copy holds
+// about 2^18 hashes (2 MB), not the list, for one more pass over the list
+// per slice.
 func (m *Model) settle(f *field) {
 	fl := f.flat
 	if fl == nil || fl.settled == m.st.n {
 		return
 	}
 	slices := 1
-	for slices < 256 && int(f.present)/slices > 1<<16 {
+	for slices < 256 && int(f.present)/slices > 1<<18 {
 		slices *= 2
 	}
 	shift := 64 - bits.Len(uint(slices-1))

@@ -31,16 +31,16 @@ func TestSortHashes(t *testing.T) {
 	}
 }
 
-// TestSettleSlices: a flat identifier of 200,000 records (settled in
+// TestSettleSlices: a flat identifier of 600,000 records (settled in
 // slices of its hash space) has the figures of the same identifier kept
-// in a table, on values that repeat (a value every 150,000 records).
+// in a table, on values that repeat (a value every 450,000 records).
 func TestSettleSlices(t *testing.T) {
 	all := Window{Kind: WindowAll}
 	flat, table := New(Options{Window: all, Headless: true}), New(Options{Window: all})
 	var rec parse.Record
-	for i := range 200_000 {
+	for i := range 600_000 {
 		rec.Reset()
-		rec.AddString("id", "v"+strconv.Itoa(i%150_000))
+		rec.AddString("id", "v"+strconv.Itoa(i%450_000))
 		rec.AddString("level", []string{"info", "warn"}[i%2])
 		flat.Add(&rec, int64(i), int64(i))
 		table.Add(&rec, int64(i), int64(i))
