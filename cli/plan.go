@@ -103,6 +103,7 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	cfg.Model.Headless = true // one snapshot, at the end
 	in, err := ingest.New(cfg)
 	if err != nil {
 		return usage("%v", err)
@@ -124,7 +125,9 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
+	restoreGC := quietGC()
 	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{})
+	restoreGC()
 	if err != nil {
 		return err
 	}
