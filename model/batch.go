@@ -188,6 +188,9 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	}
 	spread((k+e)*len(m.pairs), len(m.pairs), func(i int) {
 		p := &m.pairs[i]
+		if p.virt {
+			return // constant field: made when read (constpairs.go)
+		}
 		p.m.count(cols[p.a*k:(p.a+1)*k], cols[p.b*k:(p.b+1)*k])
 		p.m.uncount(ev[p.a*e:(p.a+1)*e], ev[p.b*e:(p.b+1)*e])
 	})
@@ -197,6 +200,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	if m.opt.Window.Kind == WindowDuration {
 		m.st.shrink()
 	}
+	m.checkVirtual()
 	m.sinceReclass += k
 	if m.sinceReclass >= reclassEvery {
 		m.sinceReclass = 0
