@@ -3,6 +3,7 @@ package model
 import (
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strconv"
 	"testing"
 	"time"
@@ -90,6 +91,50 @@ func TestConstantPairsMatchRecount(t *testing.T) {
 		}
 		if !sawVirt {
 			t.Fatalf("%s: no pair was left uncounted: the test no longer covers constant fields", w)
+		}
+	}
+}
+
+// TestRollingBaselineBatchMatchesAdd: with a rolling baseline, AddBatch
+// ends its segments where Add rolls the baseline (it used to take such
+// records one by one), so the rolled profiles, and every snapshot against
+// them, are Add's, under a window of records and one of time.
+func TestRollingBaselineBatchMatchesAdd(t *testing.T) {
+	keys := []string{"level", "berth", "crane", "tide", "manifest", "weight", "derived"}
+	for _, w := range []Window{{Kind: WindowRecords, Records: 900}, {Kind: WindowDuration, Duration: 600 * time.Millisecond}} {
+		r := rand.New(rand.NewPCG(11, 12))
+		recs := randomStream(r, 7000)
+		batched, single := New(Options{Window: w}), New(Options{Window: w})
+		batched.UseRollingBaseline()
+		single.UseRollingBaseline()
+		var batch []*parse.Record
+		var lines, times []int64
+		for i := 0; i < len(recs); {
+			k := min(len(recs)-i, 1+r.IntN(2500))
+			batch, lines, times = batch[:0], lines[:0], times[:0]
+			for j := i; j < i+k; j++ {
+				rec := &parse.Record{}
+				toRecord(recs[j], rec, keys)
+				batch = append(batch, rec)
+				lines, times = append(lines, int64(j+1)), append(times, recs[j].time)
+				single.Add(rec, int64(j+1), recs[j].time)
+			}
+			batched.AddBatch(batch, lines, times)
+			i += k
+			if !reflect.DeepEqual(batched.base.rolling, single.base.rolling) {
+				t.Fatalf("%s at %d: rolled profiles differ", w, i)
+			}
+			got, want := batched.Snapshot(SnapshotOptions{}), single.Snapshot(SnapshotOptions{})
+			got.Taken, want.Taken = time.Time{}, time.Time{}
+			if err := sameSnapshot(got, want); err != "" {
+				t.Fatalf("%s at %d: %s", w, i, err)
+			}
+			if !reflect.DeepEqual(got.Changes, want.Changes) {
+				t.Fatalf("%s at %d: changes against the baseline differ", w, i)
+			}
+		}
+		if len(batched.base.rolling) == 0 {
+			t.Fatalf("%s: the baseline never rolled", w)
 		}
 	}
 }
