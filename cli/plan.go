@@ -103,6 +103,7 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	cfg.Model.Headless = true // one snapshot, at the end
 	in, err := ingest.New(cfg)
 	if err != nil {
 		return usage("%v", err)

@@ -140,6 +140,7 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 		return err
 	}
 	cfg.Stdin = std.In
+	cfg.Model.Headless = true // one snapshot, at the end
 	if c.prof.out != "" {
 		cfg.Model.KeepText = true // identifiers are sketched from their text
 	}

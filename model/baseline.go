@@ -158,6 +158,14 @@ func (m *Model) noteEntropies() {
 	n := int64(m.st.n)
 	for _, f := range m.fields {
 		h, _, _ := f.entropy(n)
+		if f.flat != nil {
+			// Filled by unflatten, which replays the list (flatids.go).
+			h = math.NaN()
+			f.flat.notes = append(f.flat.notes, int(n))
+			if len(f.flat.notes) > historyLen {
+				f.flat.notes = f.flat.notes[1:]
+			}
+		}
 		l := append(m.base.hist[f.name], h)
 		if len(l) > historyLen {
 			l = append(l[:0], l[1:]...)

@@ -44,6 +44,7 @@ type batchState struct {
 	byF    []entry  // the same, field by field (counting sort)
 	starts []int    // byF[starts[f]:starts[f+1]] are field f's
 	rows   []uint32 // rows[r*w+f]: record r's id of field f
+	cols   []uint32 // cols[f*k+r]: the same, column-major
 	w      int
 	evict  []uint32 // ids of evicted rows, column-major
 	after  []int    // see evictions
@@ -89,6 +90,7 @@ func (m *Model) historyEvery() int {
 func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	b := &m.batch
 	k := len(recs)
+	m.capFlat(k)
 	// 1. Keys to fields.
 	b.ents = b.ents[:0]
 	for r, rec := range recs {
@@ -151,7 +153,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		gone := 0
 		for r := 0; r < k; r++ {
 			if len(ents) > 0 && int(ents[0].r) == r {
-				b.rows[r*w+f] = fl.add(ents[0].v, maxD)
+				b.rows[r*w+f] = fl.addAt(ents[0].v, maxD, nOld+r)
 				ents = ents[1:]
 			}
 			for ; gone < b.after[r]; gone++ {
@@ -172,10 +174,21 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		}
 	}
 	m.seen += int64(k)
-	// 5. Pairs, pair-major: the segment's records in, the evicted out.
+	// 5. Pairs, pair-major: the segment's records in, the evicted out,
+	// from the ids turned column-major, so that each pair's loop reads two
+	// short arrays in order.
+	if cap(b.cols) < k*w {
+		b.cols = make([]uint32, k*w)
+	}
+	cols := b.cols[:k*w]
+	for r := 0; r < k; r++ {
+		for f, id := range b.rows[r*w : (r+1)*w] {
+			cols[f*k+r] = id
+		}
+	}
 	spread((k+e)*len(m.pairs), len(m.pairs), func(i int) {
 		p := &m.pairs[i]
-		p.m.countStrided(b.rows, w, p.a, p.b, k)
+		p.m.count(cols[p.a*k:(p.a+1)*k], cols[p.b*k:(p.b+1)*k])
 		p.m.uncount(ev[p.a*e:(p.a+1)*e], ev[p.b*e:(p.b+1)*e])
 	})
 	for range e {

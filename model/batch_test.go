@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"reflect"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -226,4 +227,81 @@ func sameSnapshot(got, want *Snapshot) string {
 		return "E[I] approximations"
 	}
 	return ""
+}
+
+// TestHeadlessIdentifiersMatchTable: a headless model over a window that
+// keeps everything lists an identifier's hashes instead of keeping a table
+// (flatids.go). Fed the random streams, their identifier made unique for
+// the first 3,000 records only (so that it goes back to a table near record
+// 6,000 and leaves the rule near record 8,600), by AddBatch
+// and by Add, its snapshots, its entropy history and its rebuild must equal
+// those of the same model keeping tables, at random points.
+func TestHeadlessIdentifiersMatchTable(t *testing.T) {
+	keys := []string{"level", "berth", "crane", "tide", "manifest", "weight", "derived"}
+	all := Window{Kind: WindowAll}
+	for seed := uint64(1); seed <= 3; seed++ {
+		r := rand.New(rand.NewPCG(seed, 78))
+		stream := randomStream(r, 12000)
+		for i := 3000; i < len(stream); i++ { // unique values only at first
+			stream[i].kv["manifest"] = "m" + strconv.Itoa(r.IntN(5))
+		}
+		for i := 0; i < 3000; i += 7 { // some longer than a list's length byte holds
+			stream[i].kv["manifest"] += strings.Repeat("x", 250+i%20)
+		}
+		table := New(Options{Window: all})
+		batched := New(Options{Window: all, Headless: true})
+		single := New(Options{Window: all, Headless: true})
+		wasFlat, left := false, false
+		var recs []*parse.Record
+		var lines, times []int64
+		var one parse.Record
+		for i := 0; i < len(stream); {
+			k := min(len(stream)-i, 1+r.IntN(3000))
+			if r.IntN(4) == 0 {
+				k = min(len(stream)-i, 1+r.IntN(5))
+			}
+			recs, lines, times = recs[:0], lines[:0], times[:0]
+			for j := i; j < i+k; j++ {
+				rec := &parse.Record{}
+				toRecord(stream[j], rec, keys)
+				recs = append(recs, rec)
+				lines, times = append(lines, int64(j+1)), append(times, stream[j].time)
+				toRecord(stream[j], &one, keys)
+				single.Add(&one, int64(j+1), stream[j].time)
+			}
+			table.AddBatch(recs, lines, times)
+			batched.AddBatch(recs, lines, times)
+			i += k
+			if f := batched.fields[batched.byName["manifest"]]; f.flat != nil {
+				wasFlat = true
+			} else if wasFlat && !f.ident {
+				left = true
+			}
+			if r.IntN(5) > 0 && i < len(stream) {
+				continue
+			}
+			name := "seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
+			want := table.Snapshot(SnapshotOptions{})
+			for _, m := range []*Model{batched, single} {
+				got := m.Snapshot(SnapshotOptions{})
+				got.Taken, want.Taken = time.Time{}, time.Time{}
+				if err := sameSnapshot(got, want); err != "" {
+					t.Fatalf("%s: the headless snapshot differs from the table's: %s", name, err)
+				}
+			}
+		}
+		if !wasFlat || !left {
+			t.Fatalf("seed %d: the identifier was listed %v, left the rule %v: the test no longer covers both", seed, wasFlat, left)
+		}
+		for _, m := range []*Model{batched, single} {
+			if !reflect.DeepEqual(m.base.hist, table.base.hist) {
+				t.Fatalf("seed %d: entropy history differs:\n got %v\nwant %v", seed, m.base.hist, table.base.hist)
+			}
+			got, want := m.Rebuild().Snapshot(SnapshotOptions{}), table.Rebuild().Snapshot(SnapshotOptions{})
+			got.Taken, want.Taken = time.Time{}, time.Time{}
+			if err := sameSnapshot(got, want); err != "" {
+				t.Fatalf("seed %d: rebuilt, the headless model differs: %s", seed, err)
+			}
+		}
+	}
 }

@@ -6,23 +6,29 @@ package model
 // integers, so the sum is exactly what the incremental updates would have
 // kept.
 
-// countStrided adds one record to cell (rows[r*w+a], rows[r*w+b]) for each
-// record r < k.
-func (m *cellMap) countStrided(rows []uint32, w, a, b, k int) {
+// count adds one record to cell (as[r], bs[r]) for each r: two columns
+// read in order, the matrix's fields kept in locals (reloaded after inc,
+// which may grow the matrix or leave it for a hash map).
+func (m *cellMap) count(as, bs []uint32) {
 	m.stale = true
-	for r := 0; r < k; r++ {
-		x, y := uint64(rows[r*w+a]), uint64(rows[r*w+b])
-		if x < m.dh && y < m.dw {
-			j := x*m.dw + y
-			c := m.dense[j]
+	bs = bs[:len(as)]
+	dense, dw, dh, n := m.dense, m.dw, m.dh, m.len
+	for r, x := range as {
+		a, b := uint64(x), uint64(bs[r])
+		if a < dh && b < dw {
+			j := a*dw + b
+			c := dense[j]
 			if c == 0 {
-				m.len++
+				n++
 			}
-			m.dense[j] = c + 1
+			dense[j] = c + 1
 			continue
 		}
-		m.inc(x<<32 | y)
+		m.len = n
+		m.inc(a<<32 | b)
+		dense, dw, dh, n = m.dense, m.dw, m.dh, m.len
 	}
+	m.len = n
 }
 
 // uncount takes one record off cell (as[r], bs[r]) for each r.

@@ -1,5 +1,7 @@
 package model
 
+import "sync/atomic"
+
 // cellMap counts records per cell of a joint table, keyed by two 32-bit
 // value ids (a<<32 | b).
 //
@@ -29,7 +31,26 @@ type cellMap struct {
 	s      int64
 	// stale: counts changed without s (batch updates); see sum.
 	stale bool
+	// budget, when not nil, lends a sparse matrix room past the fill rule
+	// (see denseSpare); borrowed is what this one holds of it.
+	budget   *atomic.Int64
+	borrowed int64
 }
+
+// denseSpare is the memory, over a whole model, that matrices filled under a
+// quarter may hold past denseFillCells. The fill rule judges a matrix when
+// it has to grow, which for a field whose values are still arriving (5,000
+// accounts against a dozen hosts) is early and pessimistic: such a pair
+// would go to the hash map for good, at several times the cost per update,
+// though filled later it would be cheaper as a matrix. The spare lets a few
+// such pairs stay matrices while bounding what sparse ones can cost when
+// every field has hundreds of values; a matrix borrows only up to
+// denseBorrowCells (1 MB), so that a pair of two large fields is not built
+// as a matrix to be dropped for a hash map later.
+const (
+	denseSpare       = 16 << 20
+	denseBorrowCells = 1 << 18
+)
 
 // The matrix is limited by its cells only, not by a side: a field of
 // thousands of values against one of a few (latency_ms × level) is a long
@@ -61,7 +82,7 @@ func (m *cellMap) denseAt(k uint64) int {
 	for a >= nh {
 		nh *= 2
 	}
-	if c := nw * nh; c > denseMaxCells || c > denseFillCells && uint64(m.len)*4 < c {
+	if c := nw * nh; c > denseMaxCells || c > denseFillCells && uint64(m.len)*4 < c && (c > denseBorrowCells || !m.borrow(int64(c-m.dw*m.dh)*4)) {
 		m.toHash()
 		return -1
 	}
@@ -73,7 +94,29 @@ func (m *cellMap) denseAt(k uint64) int {
 	return int(a*m.dw + b)
 }
 
+// borrow takes n bytes from the budget, if it has them.
+func (m *cellMap) borrow(n int64) bool {
+	if m.budget == nil {
+		return false
+	}
+	if m.budget.Add(-n) < 0 {
+		m.budget.Add(n)
+		return false
+	}
+	m.borrowed += n
+	return true
+}
+
+// release gives back what the matrix borrowed (its pair is dropped).
+func (m *cellMap) release() {
+	if m.budget != nil {
+		m.budget.Add(m.borrowed)
+		m.borrowed = 0
+	}
+}
+
 func (m *cellMap) toHash() {
+	m.release()
 	d, dw := m.dense, m.dw
 	m.dense, m.dw, m.dh = nil, 0, 0
 	size := 16
@@ -210,7 +253,7 @@ func (m *cellMap) dec(k uint64) {
 			if c == 0 {
 				panic("model: cellMap.dec of an empty cell")
 			}
-			m.s += clogc(int64(c)-1) - clogc(int64(c))
+			m.s -= up(int64(c) - 1)
 			m.dense[j] = c - 1
 			if c == 1 {
 				m.len--
@@ -226,7 +269,7 @@ func (m *cellMap) dec(k uint64) {
 		i = (i + 1) & m.mask
 	}
 	c := m.counts[i]
-	m.s += clogc(int64(c)-1) - clogc(int64(c))
+	m.s -= up(int64(c) - 1)
 	if c > 1 {
 		m.counts[i] = c - 1
 		return

@@ -107,6 +107,7 @@ func (m *Model) Counts(opt CountOptions) *CountTables {
 	if opt.SketchK <= 0 {
 		opt.SketchK = 1 << 16
 	}
+	m.settleAll()
 	n := int64(m.st.n)
 	ct := &CountTables{Records: n}
 	if n > 0 {
@@ -126,7 +127,7 @@ func (m *Model) Counts(opt CountOptions) *CountTables {
 			s := *f.synth
 			fc.Synthetic = &s
 		}
-		if f.ident || f.byHash != nil || f.overflowed > 0 {
+		if f.ident || f.hashed() || f.overflowed > 0 {
 			fc.Values, fc.Counts = []string{}, []int64{}
 			fc.Summary = m.summarise(f, opt.SketchK)
 			for _, v := range m.top(f, SummaryTop) {
@@ -172,6 +173,10 @@ func (m *Model) Counts(opt CountOptions) *CountTables {
 func (m *Model) summarise(f *field, k int) *Summary {
 	s := &Summary{K: k, Present: f.present, Distinct: f.distinct + f.overflowed,
 		Estimate: f.overflowed > 0}
+	if f.flat != nil {
+		s.CLogC = float64(f.s) / fixScale // settled by Counts
+		return s
+	}
 	var cl int64
 	type hc struct {
 		h uint64

@@ -17,7 +17,10 @@
 // returns exactly the same integer, with no floating-point drift however long
 // the stream: the incremental figures equal a recount bit for bit. A batch
 // (AddBatch) changes a pair table's counts only, and its S is summed again
-// from them at the next snapshot: the same integers, so the same S. The
+// from them at the next snapshot: the same integers, so the same S. A
+// field's S leaves out the values counted 65,536 times or more, which are
+// summed when asked (field.up), and a flat identifier's S is summed from its
+// sorted hashes (flatids.go): the same integers again. The
 // rounding of each term is below 5e-10 bits, so H is within 5e-10·K/N of the
 // exact value for a table of K cells. Exactness holds while N·log2(N) stays
 // below 2^33 (windows of up to about 250 million records).
@@ -37,8 +40,12 @@
 //   - batch.go, cellbatch.go: AddBatch, the same as Add on each record,
 //     done in passes (fields and pairs spread over the cores, Σ c·log c
 //     computed when a snapshot asks).
-//   - field.go, valuetable.go, values.go: a field's value table (text, or
-//     64-bit hashes for an identifier), its counts, display text.
+//   - field.go, valuetable.go, values.go: a field's value table (text found
+//     by a hash table of its own, or 64-bit hashes for an identifier), its
+//     counts, display text.
+//   - flatids.go: a headless run's identifiers as a list of hashes, one per
+//     record, sorted when a snapshot asks (exact, with the identifier rule
+//     still decided on exact counts).
 //   - cellmap.go: a pair's joint table (a dense matrix, or a hash map).
 //   - store.go: the window's records as id columns in blocks; row and
 //     column accessors (scans read columns, never whole rows).

@@ -32,27 +32,30 @@ const (
 	emiMaxTerms      = 1 << 23
 )
 
-// lfact caches ln k! for k up to its length − 1, shared by all models.
+// lfact caches ln k! for k below lfactTable, shared by all models; larger
+// k are computed (logFact), with the same function, so the values are the
+// same either way. A table to N (eight bytes a record: 8 MB for a million)
+// used to be kept for the largest window seen.
 var lfact struct {
-	sync.Mutex
-	t []float64
+	once sync.Once
+	t    []float64
 }
 
-// logFactorials returns a table of ln k! for k = 0..n.
-func logFactorials(n int) []float64 {
-	lfact.Lock()
-	defer lfact.Unlock()
-	if k := len(lfact.t); k <= n {
-		// Grown to size at once: appending one by one would leave about
-		// three times the table as garbage (8 bytes a record).
-		t := make([]float64, n+1)
-		copy(t, lfact.t)
-		for ; k <= n; k++ {
-			t[k], _ = math.Lgamma(float64(k) + 1)
+const lfactTable = 1 << 16
+
+// logFact is ln k!.
+func logFact(k int) float64 {
+	lfact.once.Do(func() {
+		lfact.t = make([]float64, lfactTable)
+		for i := range lfact.t {
+			lfact.t[i], _ = math.Lgamma(float64(i) + 1)
 		}
-		lfact.t = t
+	})
+	if k < lfactTable {
+		return lfact.t[k]
 	}
-	return lfact.t[:n+1]
+	v, _ := math.Lgamma(float64(k) + 1)
+	return v
 }
 
 // countHist is a count vector folded into distinct counts with their
@@ -104,27 +107,33 @@ func expectedMI(ha, hb countHist) (float64, bool) {
 	if len(ha.count)*len(hb.count) > emiMaxCountPairs || estimateTerms(ha, hb, n) > emiMaxTerms {
 		return emiFirstOrder(ha, hb, n, ka, kb), true
 	}
-	lf := logFactorials(n)
 	N := float64(n)
+	lfN := logFact(n)
+	lfB, lfNB := make([]float64, len(hb.count)), make([]float64, len(hb.count))
+	for j, b := range hb.count {
+		lfB[j], lfNB[j] = logFact(b), logFact(n-b)
+	}
 	total := 0.0
 	for i, a := range ha.count {
+		lfA, lfNA := logFact(a), logFact(n-a)
 		for j, b := range hb.count {
-			total += float64(ha.mult[i]*hb.mult[j]) * emiCell(a, b, n, N, lf)
+			fixed := lfA + lfB[j] + lfNA + lfNB[j] - lfN
+			total += float64(ha.mult[i]*hb.mult[j]) * emiCell(a, b, n, N, fixed)
 		}
 	}
 	return nonNeg(total / math.Ln2), false
 }
 
-// emiCell is the inner sum, in nats, for one cell with marginals a and b.
-func emiCell(a, b, n int, N float64, lf []float64) float64 {
+// emiCell is the inner sum, in nats, for one cell with marginals a and b;
+// fixed is ln(a! b! (N−a)! (N−b)! / N!).
+func emiCell(a, b, n int, N float64, fixed float64) float64 {
 	lo, hi := max(1, a+b-n), min(a, b)
 	if lo > hi {
 		return 0
 	}
 	mode := int(float64(a+1) * float64(b+1) / (N + 2))
 	mode = min(max(mode, lo), hi)
-	fixed := lf[a] + lf[b] + lf[n-a] + lf[n-b] - lf[n]
-	logP := fixed - lf[mode] - lf[a-mode] - lf[b-mode] - lf[n-a-b+mode]
+	logP := fixed - logFact(mode) - logFact(a-mode) - logFact(b-mode) - logFact(n-a-b+mode)
 	p0 := math.Exp(logP)
 	lab := math.Log(N / (float64(a) * float64(b)))
 	term := func(k int, p float64) float64 {

@@ -8,11 +8,15 @@ import (
 // fixScale is the fixed-point scale of S: one unit is 2^-30 bit·records.
 const fixScale = 1 << 30
 
-// The values c·log2(c) are looked up, not computed, for counts below
-// 1<<22: a log2 costs more than the rest of a table update. The table is
-// filled a chunk at a time as counts reach it, so memory follows the largest
-// count seen (8 bytes per count). Chunks are published atomically, so models
-// in different goroutines can share them.
+// The values c·log2(c) are looked up, not computed, where a loop steps
+// counts one at a time (up, for counts below 1<<22: a log2 costs more than
+// the rest of a table update). The table is filled a chunk at a time as
+// counts reach it, so memory follows the largest count stepped (8 bytes per
+// count). Chunks are published atomically, so models in different
+// goroutines can share them. A field's values step past the first chunk
+// through field.up, which memoises instead, and sums taken once (clogc)
+// compute past it: a report over a million records of one value then
+// holds the first chunk only.
 const (
 	chunkBits  = 16
 	chunkSize  = 1 << chunkBits
@@ -47,12 +51,14 @@ func clogcSlow(c int64) int64 {
 	return int64(math.Round(x * math.Log2(x) * fixScale))
 }
 
-// clogc is c·log2(c) in fixed point (0 for c ≤ 1).
+// clogc is c·log2(c) in fixed point (0 for c ≤ 1): looked up in the first
+// chunk, computed past it. Loops that step a count by one use up, which
+// looks up every chunk.
 func clogc(c int64) int64 {
 	if uint64(c) < chunkSize {
 		return clogc0[c]
 	}
-	return clogcBig(c)
+	return clogcSlow(c)
 }
 
 func clogcBig(c int64) int64 {

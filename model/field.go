@@ -1,6 +1,9 @@
 package model
 
-import "hash/maphash"
+import (
+	"hash/maphash"
+	"slices"
+)
 
 // hashSeed keys the value hashes of identifier fields for this process.
 var hashSeed = maphash.MakeSeed()
@@ -19,12 +22,13 @@ const overflow = ^uint32(0)
 // Invariants: counts[id] is the number of window records whose value id for
 // this field is id (id ≥ 1); counts[0] is unused (absent records are
 // n − present); present == Σ counts[id≥1] + overflowed; distinct is the number
-// of ids with counts[id] > 0; s == Σ clogc(counts[id]); ids with a zero count
+// of ids with counts[id] > 0; s + Σ clogc(counts[id]) over big == Σ clogc(counts[id]) (see up); ids with a zero count
 // are on free and not in values.
 type field struct {
 	name    string
 	index   int
-	values  map[string]uint32
+	values  *hashTable // ids by text (textHash, probeText); nil once hashed
+	words   []wordKey  // words[id]: text[id]'s, when 16 bytes or shorter
 	text    []string
 	counts  []int32
 	free    []uint32
@@ -44,6 +48,10 @@ type field struct {
 	// about n²/2^65 (3e-6 for ten million values).
 	byHash *hashTable
 	ids    idChunks
+	// flat, when not nil, replaces byHash: the identifier's values are a
+	// list of hashes, one per record (flatids.go); counts is then nil and
+	// distinct and s are exact as of the list's last settle.
+	flat *flatIDs
 	// samples holds the first few values of a hashed field, for display.
 	samples []string
 
@@ -53,6 +61,9 @@ type field struct {
 	synth *Synthetic
 	// timestamp: the stream's time field, never tracked (SetTimestamp).
 	timestamp bool
+	// big lists the values counted chunkSize times or more, whose terms
+	// s leaves out (see up).
+	big []uint32
 	// ident: the field is classified an identifier (with hysteresis);
 	// identRounds counts the reclassifications it has stayed one.
 	ident       bool
@@ -63,20 +74,31 @@ func newField(name string, index int) *field {
 	return &field{
 		name:   name,
 		index:  index,
-		values: make(map[string]uint32),
+		values: newHashTable(0),
 		text:   []string{""},
+		words:  []wordKey{{}},
 		counts: []int32{0},
 	}
 }
 
-// intern returns the id of value v, adding it if new, and counts one more
+// addAt is add for the record that will be the store's r-th: a flat
+// field lists it there, its id made later (addAt returns absent).
+func (f *field) addAt(v []byte, maxDistinct int, r int) uint32 {
+	if f.flat != nil {
+		return f.addFlat(v, r)
+	}
+	return f.add(v, maxDistinct)
+}
+
+// add returns the id of value v, adding it if new, and counts one more
 // record with it.
 func (f *field) add(v []byte, maxDistinct int) uint32 {
 	if f.byHash != nil {
 		return f.addHashed(v, maxDistinct)
 	}
-	id, ok := f.values[string(v)]
-	if !ok {
+	h, k := textHash(v)
+	id := probeText(f.values, h, k, v, f.text, f.words)
+	if id == 0 {
 		if f.ident && maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
 			f.present++
@@ -87,18 +109,20 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 			id = f.free[n-1]
 			f.free = f.free[:n-1]
 			f.text[id] = string(v)
+			f.words[id] = k
 		} else {
 			id = uint32(len(f.text))
 			f.text = append(f.text, string(v))
+			f.words = append(f.words, k)
 			f.counts = append(f.counts, 0)
 		}
-		f.values[f.text[id]] = id
+		f.values.insert(h, id)
 	}
 	c := f.counts[id]
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.s += f.up(int64(c), id)
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(len(f.text[id]))
@@ -118,7 +142,7 @@ func (f *field) remove(id uint32) {
 		return
 	}
 	c := f.counts[id]
-	f.s += clogc(int64(c)-1) - clogc(int64(c))
+	f.s += f.down(int64(c), id)
 	f.counts[id] = c - 1
 	f.present--
 	if f.byHash != nil {
@@ -133,7 +157,8 @@ func (f *field) remove(id uint32) {
 	f.valueBytes -= int64(len(f.text[id]))
 	if c == 1 {
 		f.distinct--
-		delete(f.values, f.text[id])
+		h, _ := textHash([]byte(f.text[id]))
+		f.values.remove(h, id)
 		f.text[id] = ""
 		f.free = append(f.free, id)
 	}
@@ -141,7 +166,7 @@ func (f *field) remove(id uint32) {
 
 // addHashed is add for a hashed field.
 func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
-	h := maphash.Bytes(hashSeed, v)
+	h := hashBytes(v)
 	id := probe(f.byHash, h, &f.ids)
 	if id == 0 {
 		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
@@ -167,12 +192,59 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	if c == 0 {
 		f.distinct++
 	}
-	f.s += clogc(int64(c)+1) - clogc(int64(c))
+	f.s += f.up(int64(c), id)
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(f.ids.length(id))
 	return id
 }
+
+// up is the change of s when value id, of count c, gains a record. s
+// sums c·log c over the values counted under the table's first chunk
+// only; a value reaching chunkSize moves to big, whose terms sum adds when
+// asked. So a value that keeps gaining records (a constant field's, the
+// commonest level's) costs nothing per record past the chunk, where
+// looking its terms up would hold 8 bytes of table for every count up to
+// the largest (8 MB for a million records of one value) and computing them
+// a logarithm a record.
+func (f *field) up(c int64, id uint32) int64 {
+	switch {
+	case c+1 < chunkSize:
+		return clogc0[c+1] - clogc0[c]
+	case c+1 == chunkSize:
+		f.big = append(f.big, id)
+		return -clogc0[c]
+	}
+	return 0
+}
+
+// down is the change of s when value id, of count c, loses a record.
+func (f *field) down(c int64, id uint32) int64 {
+	switch {
+	case c < chunkSize:
+		return clogc0[c-1] - clogc0[c]
+	case c == chunkSize:
+		i := slices.Index(f.big, id)
+		f.big = slices.Delete(f.big, i, i+1)
+		return clogc0[c-1]
+	}
+	return 0
+}
+
+// sum is Σ c·log c over the field's values (see up).
+func (f *field) sum() int64 {
+	s := f.s
+	for _, id := range f.big {
+		s += clogc(int64(f.counts[id]))
+	}
+	return s
+}
+
+// hashBytes is the keyed hash of an identifier's value.
+func hashBytes(v []byte) uint64 { return maphash.Bytes(hashSeed, v) }
+
+// hashed says whether f keeps no text of its values (see byHash, flat).
+func (f *field) hashed() bool { return f.byHash != nil || f.flat != nil }
 
 // hashValues turns the field into a hashed one (see byHash), dropping the
 // text of its values.
@@ -180,7 +252,7 @@ func (f *field) hashValues() {
 	if f.byHash != nil {
 		return
 	}
-	f.byHash = newHashTable(len(f.values))
+	f.byHash = newHashTable(f.values.len())
 	// By id, not over the map, so that the samples kept do not depend on
 	// the map's random order.
 	for id, v := range f.text {
@@ -195,14 +267,25 @@ func (f *field) hashValues() {
 		}
 	}
 	f.text = nil // hashed fields keep no text: text[id] is never read
-	f.values = nil
+	f.values, f.words = nil, nil
+}
+
+// idOf returns the id of value v, if the field keeps its text and has it.
+func (f *field) idOf(v string) (uint32, bool) {
+	if f.values == nil {
+		return 0, false
+	}
+	b := []byte(v)
+	h, k := textHash(b)
+	id := probeText(f.values, h, k, b, f.text, f.words)
+	return id, id != 0
 }
 
 // stats returns n-record figures: entropy (plug-in), cells (non-empty values
 // including absent) and whether they are estimates.
 func (f *field) entropy(n int64) (h float64, cells int64, estimate bool) {
 	a := n - f.present
-	s := f.s + clogc(a) // overflow values count once each: clogc(1) == 0
+	s := f.sum() + clogc(a) // overflow values count once each: clogc(1) == 0
 	cells = f.distinct + f.overflowed
 	if a > 0 {
 		cells++

@@ -51,6 +51,7 @@ func (m *Model) Find(conds []Cond, limit int) ([]Found, int) {
 		t := test{}
 		idx, ok := m.byName[c.Field]
 		if ok {
+			m.unflatten(idx)
 			f := m.fields[idx]
 			t.col = m.st.column(idx, 0, n, nil)
 			t.want = make([]bool, len(f.counts))

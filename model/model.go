@@ -3,6 +3,7 @@ package model
 import (
 	"context"
 	"math"
+	"sync/atomic"
 	"time"
 
 	"bitsift/parse"
@@ -32,6 +33,13 @@ type Options struct {
 	// (SnapshotFromCounts), which needs every pair's cells from every
 	// shard. Memory then grows with the shard's records, not its window.
 	NoIdentifiers bool
+	// Headless says the model's owner takes few snapshots (a report or a
+	// plan, one at the end): over a window that keeps everything, an
+	// identifier may then be kept as a list of hashes sorted when a
+	// snapshot asks, instead of a table kept exact as it goes
+	// (flatids.go). A screen, snapshotting several times a second, leaves
+	// it unset.
+	Headless bool
 }
 
 func (o Options) withDefaults() Options {
@@ -92,6 +100,8 @@ type Model struct {
 
 	sinceReclass int
 	batch        batchState
+	// denseSpare is the room left for sparse pair matrices (cellmap.go).
+	denseSpare atomic.Int64
 	// lastDetWork is the work the last determinant search did (tests).
 	lastDetWork int
 
@@ -106,12 +116,14 @@ type Model struct {
 
 // New returns an empty model.
 func New(opt Options) *Model {
-	return &Model{
+	m := &Model{
 		opt:     opt.withDefaults(),
 		byName:  make(map[string]int),
 		pairAt:  make(map[[2]int]int),
 		leftOut: make(map[string]struct{}),
 	}
+	m.denseSpare.Store(denseSpare)
+	return m
 }
 
 // Window is the window the model covers.
@@ -127,6 +139,7 @@ func (m *Model) Seen() int64 { return m.seen }
 // covers. line is the record's line number in its source and t its time
 // (record time, else arrival time), in Unix nanoseconds.
 func (m *Model) Add(rec *parse.Record, line int64, t int64) {
+	m.capFlat(1)
 	m.gen++
 	if m.gen == 0 { // wrapped: old marks could collide
 		clear(m.mark)
@@ -160,7 +173,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 			continue // a repeated key: the first one counts
 		}
 		m.mark[idx] = m.gen
-		m.cur[idx] = m.fields[idx].add(rec.Value(i), m.opt.MaxDistinct)
+		m.cur[idx] = m.fields[idx].addAt(rec.Value(i), m.opt.MaxDistinct, m.st.n)
 		if idx >= width {
 			width = idx + 1
 		}
@@ -282,6 +295,7 @@ func (m *Model) track(idx int) {
 	if f.tracked || f.timestamp {
 		return
 	}
+	m.unflatten(idx)
 	f.tracked = true
 	var added []int
 	for j, g := range m.fields {
@@ -290,7 +304,9 @@ func (m *Model) track(idx int) {
 		}
 		a, b := min(idx, j), max(idx, j)
 		m.pairAt[[2]int{a, b}] = len(m.pairs)
-		m.pairs = append(m.pairs, pair{a: a, b: b, m: newCellMap()})
+		cm := newCellMap()
+		cm.budget = &m.denseSpare
+		m.pairs = append(m.pairs, pair{a: a, b: b, m: cm})
 		added = append(added, len(m.pairs)-1)
 	}
 	if len(added) == 0 || m.st.n == 0 {
@@ -324,6 +340,8 @@ func (m *Model) untrack(idx int) {
 	for _, p := range m.pairs {
 		if p.a != idx && p.b != idx {
 			kept = append(kept, p)
+		} else {
+			p.m.release()
 		}
 	}
 	clear(m.pairs[len(kept):])
@@ -337,6 +355,7 @@ func (m *Model) untrack(idx int) {
 // reclassify applies the identifier rule with hysteresis, moving fields in
 // and out of pair tracking.
 func (m *Model) reclassify() {
+	m.reclassifyFlat()
 	for i, f := range m.fields {
 		ratio := float64(f.distinct+f.overflowed) / math.Max(1, float64(f.present))
 		switch {
@@ -356,8 +375,12 @@ func (m *Model) reclassify() {
 		} else {
 			f.identRounds = 0
 		}
-		if f.ident && f.byHash == nil && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
+		if f.ident && !f.hashed() && !m.opt.KeepText && (f.distinct >= hashMinDistinct || f.identRounds >= hashMinRounds) {
 			f.hashValues()
+		}
+		if f.ident && f.byHash != nil && f.overflowed == 0 && m.flatOK() &&
+			float64(f.distinct) >= flatEnter*float64(f.present) && int(f.present) <= m.opt.MaxDistinct/2 {
+			m.flatten(i)
 		}
 	}
 	for i, f := range m.fields {
@@ -377,6 +400,7 @@ func (m *Model) Flush() {
 // Rebuild recomputes every table from the window's records: a reference
 // for tests of the incremental updates.
 func (m *Model) Rebuild() *Model {
+	m.unflattenAll()
 	r := New(m.opt)
 	r.opt.Window = Window{Kind: WindowAll}
 	for n, s := range m.synthetic {

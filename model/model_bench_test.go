@@ -84,3 +84,28 @@ func BenchmarkSnapshot20(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkAddBatch is AddBatch on 200k demo records in batches of 512
+// (what the report's pipeline hands over), from an empty model: in a
+// headless all-records window (a report) and in a window of 100k records.
+// One op is the whole 200k records.
+func BenchmarkAddBatch(b *testing.B) {
+	recs := demoRecords(200_000)
+	ptrs := make([]*parse.Record, len(recs))
+	lines := make([]int64, len(recs))
+	for i := range recs {
+		ptrs[i], lines[i] = &recs[i], int64(i)
+	}
+	for _, w := range []Window{{Kind: WindowAll}, {Kind: WindowRecords, Records: 100_000}} {
+		b.Run(w.String(), func(b *testing.B) {
+			for b.Loop() {
+				m := New(Options{Window: w, Headless: true})
+				for i := 0; i < len(ptrs); i += 512 {
+					j := min(i+512, len(ptrs))
+					m.AddBatch(ptrs[i:j], lines[i:j], lines[i:j])
+				}
+			}
+			b.ReportMetric(float64(len(recs))*float64(b.N)/b.Elapsed().Seconds(), "records/s")
+		})
+	}
+}

@@ -104,7 +104,7 @@ func (m *Model) buildProfile(s *Snapshot) *Profile {
 			BestGiven: fs.BestGiven, Absent: m.st.n - int(f.present), Top: []ProfileValue{},
 		}
 		listed := 0
-		if f.byHash == nil {
+		if !f.hashed() {
 			for _, v := range m.top(f, ProfileTopValues+1) {
 				if v.Absent || len(fp.Top) >= ProfileTopValues {
 					continue

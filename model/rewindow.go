@@ -13,6 +13,7 @@ import (
 // Seen and the left-out fields carry over; fields keep their order. It costs
 // what adding the held records again costs, O(records × tracked pairs).
 func (m *Model) WithWindow(w Window) *Model {
+	m.unflattenAll()
 	opt := m.opt
 	opt.Window = w
 	r := New(opt)

@@ -78,7 +78,7 @@ func JensenShannon(p, q []float64) float64 {
 func (m *Model) fieldShift(s *Snapshot, i int, bp *FieldProfile, baseRecords int) *Shift {
 	f := m.fields[i]
 	fs := &s.Fields[i]
-	if fs.Kind == Identifier || f.byHash != nil || (bp != nil && bp.Kind == Identifier) {
+	if fs.Kind == Identifier || f.hashed() || (bp != nil && bp.Kind == Identifier) {
 		return nil
 	}
 	if bp == nil {
@@ -124,7 +124,7 @@ func (m *Model) valueBuckets(f *field, bp *FieldProfile) (base, now []float64) {
 	for _, v := range bp.Top {
 		seen[v.Value] = true
 		c := 0
-		if id, ok := f.values[v.Value]; ok {
+		if id, ok := f.idOf(v.Value); ok {
 			c = int(f.counts[id])
 		}
 		base = append(base, float64(v.Count))

@@ -240,6 +240,7 @@ func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 	if opt.TopValues == 0 {
 		opt.TopValues = 10
 	}
+	m.settleAll()
 	n := int64(m.st.n)
 	s := &Snapshot{
 		Taken:         now(),
@@ -337,7 +338,7 @@ func (m *Model) top(f *field, k int) []ValueCount {
 		// Overflow values are each counted once; there is nothing to list.
 	}
 	minKept := 0
-	if f.byHash != nil {
+	if f.hashed() {
 		// Values of a hashed identifier are not kept; show the first ones
 		// seen, which each occur about once.
 		for _, v := range f.samples {

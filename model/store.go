@@ -120,22 +120,8 @@ func (s *store) push(row []uint32, m rowMeta) {
 		b.cols = append(b.cols, nil)
 	}
 	for j, id := range row {
-		if id == absent {
-			continue // columns start zeroed, and each row is written once
-		}
-		w := b.width[j]
-		if need := idWidth(id); need > w {
-			b.widen(j, need)
-			w = need
-		}
-		c := b.cols[j]
-		switch w {
-		case 1:
-			c[r] = byte(id)
-		case 2:
-			c[2*r], c[2*r+1] = byte(id), byte(id>>8)
-		default:
-			c[4*r], c[4*r+1], c[4*r+2], c[4*r+3] = byte(id), byte(id>>8), byte(id>>16), byte(id>>24)
+		if id != absent { // columns start zeroed, and each row is written once
+			b.put(j, r, id)
 		}
 	}
 	s.n++
@@ -252,6 +238,57 @@ func (s *store) bytes() int {
 		n += 4*(len(b.lines)+len(b.times)) + 8*(len(b.wideL)+len(b.wideT))
 	}
 	return n
+}
+
+// put writes id as record r's id of field j, widening the column as
+// needed; the slot must still hold absent (each row is written once).
+func (b *block) put(j, r int, id uint32) {
+	for len(b.width) <= j {
+		b.width = append(b.width, 0)
+		b.cols = append(b.cols, nil)
+	}
+	w := b.width[j]
+	if need := idWidth(id); need > w {
+		b.widen(j, need)
+		w = need
+	}
+	c := b.cols[j]
+	switch w {
+	case 1:
+		c[r] = byte(id)
+	case 2:
+		c[2*r], c[2*r+1] = byte(id), byte(id>>8)
+	default:
+		c[4*r], c[4*r+1], c[4*r+2], c[4*r+3] = byte(id), byte(id>>8), byte(id>>16), byte(id>>24)
+	}
+}
+
+// dropColumn empties field j's column in every block: its ids are kept
+// elsewhere (a flat identifier's list) until setColumn writes them back.
+func (s *store) dropColumn(j int) {
+	for _, b := range s.blocks {
+		if j < len(b.width) {
+			b.width[j], b.cols[j] = 0, nil
+		}
+	}
+	if s.spare != nil && j < len(s.spare.width) {
+		s.spare.width[j], s.spare.cols[j] = 0, nil
+	}
+}
+
+// setColumn writes ids as field j's column of the window records lo ..
+// lo+len(ids)−1, whose column dropColumn emptied.
+func (s *store) setColumn(j, lo int, ids []uint32) {
+	if len(ids) > 0 && j >= s.width {
+		s.width = j + 1
+		s.out = make([]uint32, s.width)
+	}
+	for i, id := range ids {
+		if id != absent {
+			b, r := s.at(lo + i)
+			b.put(j, r, id)
+		}
+	}
 }
 
 // column returns field j's ids for the window records lo .. hi−1, oldest

@@ -307,7 +307,7 @@ func (m *Model) baselineCost(s *Snapshot, base *Profile, i int) *fieldCost {
 		if !ok {
 			continue
 		}
-		switch tid, found := f.values[w.Target]; {
+		switch tid, found := f.idOf(w.Target); {
 		case w.Absent:
 			c.expect[id] = absent
 		case found:

@@ -230,7 +230,7 @@ func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
 	var out []*distSeries
 	for i, f := range m.fields {
 		fs := &s.Fields[i]
-		if fs.Kind == Constant || fs.Kind == Identifier || fs.Timestamp || fs.Distinct > shiftMaxValues || f.byHash != nil {
+		if fs.Kind == Constant || fs.Kind == Identifier || fs.Timestamp || fs.Distinct > shiftMaxValues || f.hashed() {
 			continue
 		}
 		d := &distSeries{idx: i, bucket: make([]int, len(f.counts)), counts: make([][]float64, chunks)}

@@ -7,7 +7,7 @@ import "strconv"
 // for a hashed identifier, whose text is not kept, a stand-in that is equal
 // iff the ids are equal, as long as the value was where it could be.
 func (f *field) replayValue(id uint32) string {
-	if f.byHash == nil {
+	if !f.hashed() {
 		return f.text[id]
 	}
 	s := "#" + strconv.Itoa(int(id))
@@ -28,7 +28,7 @@ func dots(n int) string {
 // display returns the text of value id of f for a screen or report; a
 // hashed identifier's values are not kept, and show as their id.
 func (f *field) display(id uint32) string {
-	if f.byHash == nil {
+	if !f.hashed() {
 		return f.text[id]
 	}
 	return "#" + strconv.Itoa(int(id)) + " (value not kept)"

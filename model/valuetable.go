@@ -1,5 +1,11 @@
 package model
 
+import (
+	"encoding/binary"
+	"hash/maphash"
+	"math/bits"
+)
+
 // hashTable maps the 64-bit keyed hashes of an identifier field's values to
 // their ids. It is an open-addressing table with linear probing and
 // backward-shift deletion, so a value leaving the window takes its entry out
@@ -168,3 +174,65 @@ func (c *idChunks) set(id uint32, h uint64, l int32) {
 
 // bytes is the memory the chunks hold.
 func (c *idChunks) bytes() int { return len(c.h) << idChunkBits * 12 }
+
+// Text tables. A field that keeps its values' text finds their ids with a
+// hashTable too, keyed by textHash, the text itself compared on a tag
+// match (probeText). It replaced a Go map[string]uint32, which cost about
+// 40% of the model's interning: the map's small-map path compares a key
+// with each of up to eight entries, and its hash is the general one, where
+// textHash mixes a short value's bytes in two loads and a multiply.
+
+// textSeed keys textHash for this process, so that values chosen to
+// collide in one run do not collide in another.
+var textSeed = maphash.Bytes(maphash.MakeSeed(), nil) | 1
+
+// wordKey is a value of up to 16 bytes as the two words textHash loads:
+// with its length, it tells the value exactly (the loads cover every byte),
+// so a short value is compared in two word compares, not a call.
+type wordKey struct{ a, b uint64 }
+
+// textHash hashes a value for a text table: values of up to 16 bytes by
+// two overlapping loads (returned as its wordKey) mixed with a 128-bit
+// multiply (after wyhash's construction), longer ones with maphash.
+func textHash(v []byte) (uint64, wordKey) {
+	n := len(v)
+	var a, b uint64
+	switch {
+	case n > 16:
+		return maphash.Bytes(hashSeed, v), wordKey{}
+	case n >= 8:
+		a, b = binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])
+	case n >= 4:
+		a, b = uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))
+	case n > 0:
+		a = uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1])
+	}
+	hi, lo := bits.Mul64(a^textSeed^uint64(n)<<56, b^0x9E3779B97F4A7C15)
+	hi, lo = bits.Mul64(hi^lo, textSeed^0xD6E8FEB86659FD93)
+	return hi ^ lo, wordKey{a, b}
+}
+
+// probeText returns the id whose text is v (h, k = textHash(v)), or 0;
+// words[id] is id's wordKey.
+func probeText(t *hashTable, h uint64, k wordKey, v []byte, text []string, words []wordKey) uint32 {
+	tag := h >> 32
+	i := t.home(h)
+	short := len(v) <= 16
+	for {
+		s := t.slots[i]
+		if s == 0 {
+			return 0
+		}
+		if s>>32 == tag {
+			id := uint32(s)
+			if short {
+				if len(text[id]) == len(v) && words[id] == k {
+					return id
+				}
+			} else if text[id] == string(v) {
+				return id
+			}
+		}
+		i = (i + 1) & t.mask
+	}
+}

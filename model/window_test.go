@@ -112,8 +112,8 @@ func TestIdsReleased(t *testing.T) {
 			f.byHash != nil, f.distinct, f.byHash.len(), len(f.counts))
 	}
 	g := m.fields[m.byName["code"]]
-	if len(g.values) != 5 || g.byHash != nil {
-		t.Errorf("code interns %d values (hashed %v), want 5 as text", len(g.values), g.byHash != nil)
+	if g.values.len() != 5 || g.byHash != nil {
+		t.Errorf("code interns %d values (hashed %v), want 5 as text", g.values.len(), g.byHash != nil)
 	}
 }
 

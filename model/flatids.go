@@ -1,0 +1,374 @@
+package model
+
+import (
+	"math"
+	"math/bits"
+)
+
+// Identifiers as a list of hashes. A headless run (Options.Headless: a
+// report or a plan, which take one snapshot at the end) over the whole
+// stream (WindowAll, nothing ever leaves) keeps a hashed identifier's
+// values as one 64-bit hash per record, in record order, instead of a hash
+// table of its distinct values: appending costs nothing like a probe into a
+// table of a million entries (a cache miss each, and the table's doublings),
+// and the list costs 9 bytes a record against about 36. The exact figures
+// (distinct values, Σ c·log c) come from sorting a copy of the list when a
+// snapshot asks (settle).
+//
+// The identifier rule still sees exact counts. It needs them to decide that
+// a field stops being an identifier (its share of distinct values falls
+// below identLeave); distinct values never decrease in a window that keeps
+// everything, so the count of the last settle is a lower bound, and only
+// when that bound no longer proves the share above identLeave is the list
+// settled again, exactly. A field whose exact share is then under
+// flatLeave goes back to the table (unflatten), as does one that could
+// reach MaxDistinct (past which values overflow, a decision made value by
+// value), and every field before anything reads ids from the store: a
+// flat field's store column is empty, its ids being made by unflatten.
+// Between settles the list grows by at least 1/flatLeave−1/identLeave of
+// itself, so settling costs O(n log n) over the whole run.
+//
+// Entropy history notes (noteEntropies) taken while a field is flat are
+// placeholders, filled by unflatten, which replays the list in order: an
+// identifier's history is read only once it has stopped being one.
+
+// flatEnter and flatLeave bound the share of distinct values of a flat
+// identifier: it becomes flat at a reclassification with at least
+// flatEnter, and leaves the list for the table when a settle finds less
+// than flatLeave.
+const (
+	flatEnter = 0.6
+	flatLeave = 0.5
+)
+
+const (
+	flatChunkBits = 16
+	flatChunkMask = 1<<flatChunkBits - 1
+)
+
+// flatIDs is a flat identifier's list: the hash and length of the value of
+// store record r, or 0 when the record lacks the field. Chunks never move,
+// so the list grows without copying. A length takes a byte; those of 255
+// and more are in long (a stand-in made by unflatten for a replay keeps
+// its value's length, see replayValue).
+type flatIDs struct {
+	h    [][]uint64
+	l    [][]uint8
+	long map[int]uint32
+	n    int // records listed (later ones lack the field)
+	// settled: f.distinct and f.s are exact for the first settled records.
+	settled int
+	// notes are the store sizes at which noteEntropies left a NaN in the
+	// field's history, oldest first (at most historyLen).
+	notes []int
+}
+
+// flatHash is the list's hash of a value: maphash, with 0 (absent in the
+// list) moved to 1. Two values then share a hash with probability about
+// n²/2^65, as in the table.
+func flatHash(h uint64) uint64 {
+	if h == 0 {
+		return 1
+	}
+	return h
+}
+
+// put sets record r's hash and length; records between the last listed and
+// r lack the field.
+func (fl *flatIDs) put(r int, h uint64, l int) {
+	for r>>flatChunkBits >= len(fl.h) {
+		fl.h = append(fl.h, make([]uint64, 1<<flatChunkBits))
+		fl.l = append(fl.l, make([]uint8, 1<<flatChunkBits))
+	}
+	fl.h[r>>flatChunkBits][r&flatChunkMask] = h
+	if l >= 255 {
+		if fl.long == nil {
+			fl.long = map[int]uint32{}
+		}
+		fl.long[r] = uint32(l)
+		l = 255
+	}
+	fl.l[r>>flatChunkBits][r&flatChunkMask] = uint8(l)
+	fl.n = max(fl.n, r+1)
+}
+
+func (fl *flatIDs) at(r int) (uint64, uint32) {
+	if r >= fl.n {
+		return 0, 0
+	}
+	l := uint32(fl.l[r>>flatChunkBits][r&flatChunkMask])
+	if l == 255 {
+		l = fl.long[r]
+	}
+	return fl.h[r>>flatChunkBits][r&flatChunkMask], l
+}
+
+// flatOK says whether this model may keep identifiers as lists.
+func (m *Model) flatOK() bool {
+	return m.opt.Headless && m.opt.Window.Kind == WindowAll && m.base.mode != BaselineRolling
+}
+
+// addFlat is add for a flat field: record r (its store index) has value v.
+func (f *field) addFlat(v []byte, r int) uint32 {
+	f.flat.put(r, flatHash(hashBytes(v)), len(v))
+	if len(f.samples) < 3 {
+		f.samples = append(f.samples, string(v))
+	}
+	f.present++
+	f.valueBytes += int64(len(v))
+	return absent
+}
+
+// flatten turns hashed identifier idx into a flat one, its list made from
+// the store's column, which is then emptied.
+func (m *Model) flatten(idx int) {
+	f := m.fields[idx]
+	fl := &flatIDs{}
+	col := m.st.column(idx, 0, m.st.n, nil)
+	for r, id := range col {
+		if id != absent {
+			fl.put(r, flatHash(f.ids.hash(id)), int(f.ids.length(id)))
+		}
+	}
+	fl.settled = m.st.n
+	f.s, f.big = f.sum(), nil // the list keeps no counts: s is whole
+	m.st.dropColumn(idx)
+	f.flat = fl
+	f.byHash, f.ids, f.counts, f.free = nil, idChunks{}, nil, nil
+}
+
+// settle makes f.distinct and f.s exact for the window (a flat field's).
+// Equal values have equal hashes, so the list is taken a slice of the hash
+// space at a time (by the top bits: a value's records all fall in one
+// slice), each slice gathered, sorted and its runs counted: the copy holds
+// about 2^18 hashes (2 MB), not the list, for one more pass over the list
+// per slice.
+func (m *Model) settle(f *field) {
+	fl := f.flat
+	if fl == nil || fl.settled == m.st.n {
+		return
+	}
+	slices := 1
+	for slices < 256 && int(f.present)/slices > 1<<18 {
+		slices *= 2
+	}
+	shift := 64 - bits.Len(uint(slices-1))
+	var buf []uint64
+	var distinct, s int64
+	for sl := range slices {
+		buf = buf[:0]
+		for c, chunk := range fl.h {
+			end := min(len(chunk), fl.n-c<<flatChunkBits)
+			for _, h := range chunk[:max(end, 0)] {
+				if h != 0 && (slices == 1 || int(h>>shift) == sl) {
+					buf = append(buf, h)
+				}
+			}
+		}
+		sortHashes(buf)
+		for i := 0; i < len(buf); {
+			j := i + 1
+			for j < len(buf) && buf[j] == buf[i] {
+				j++
+			}
+			distinct++
+			s += clogc(int64(j - i))
+			i = j
+		}
+	}
+	f.distinct, f.s = distinct, s
+	fl.settled = m.st.n
+}
+
+// settleAll settles every flat field, side by side: before a snapshot or
+// an export reads their figures.
+func (m *Model) settleAll() {
+	var flat []*field
+	for _, f := range m.fields {
+		if f.flat != nil && f.flat.settled != m.st.n {
+			flat = append(flat, f)
+		}
+	}
+	spread(parallelMin*len(flat), len(flat), func(i int) { m.settle(flat[i]) })
+}
+
+// unflatten turns flat field idx back into a hashed identifier with a
+// table: its ids are made by replaying the list in record order, written
+// to the store's column, and its history placeholders filled.
+func (m *Model) unflatten(idx int) {
+	f := m.fields[idx]
+	fl := f.flat
+	if fl == nil {
+		return
+	}
+	f.flat = nil
+	f.byHash = newHashTable(int(f.distinct))
+	f.counts = []int32{0}
+	f.distinct, f.s = 0, 0
+	var present int64
+	notes := fl.notes
+	var noted []float64
+	ids := make([]uint32, m.st.n)
+	for r := range ids {
+		h, l := fl.at(r)
+		if h != 0 {
+			id := probe(f.byHash, h, &f.ids)
+			if id == 0 {
+				id = uint32(len(f.counts))
+				f.counts = append(f.counts, 0)
+				f.ids.set(id, h, int32(l))
+				f.byHash.insert(h, id)
+			}
+			c := f.counts[id]
+			if c == 0 {
+				f.distinct++
+			}
+			f.s += f.up(int64(c), id)
+			f.counts[id] = c + 1
+			ids[r] = id
+			present++
+		}
+		for len(notes) > 0 && notes[0] == r+1 {
+			noted = append(noted, entropyFromS(int64(r+1), f.sum()+clogc(int64(r+1)-present)))
+			notes = notes[1:]
+		}
+	}
+	m.st.setColumn(idx, 0, ids)
+	// The placeholders are the last NaNs of the history, in order.
+	if h := m.base.hist[f.name]; len(noted) > 0 {
+		for i, j := len(h)-1, len(noted)-1; i >= 0 && j >= 0; i-- {
+			if math.IsNaN(h[i]) {
+				h[i] = noted[j]
+				j--
+			}
+		}
+	}
+}
+
+// unflattenAll unflattens every flat field: before the store's columns are
+// read whole (Rebuild, WithWindow).
+func (m *Model) unflattenAll() {
+	for i, f := range m.fields {
+		if f.flat != nil {
+			m.unflatten(i)
+		}
+	}
+}
+
+// capFlat unflattens the flat fields that k more records could take to
+// MaxDistinct values, past which a new value overflows: a decision made
+// value by value, which needs the table.
+func (m *Model) capFlat(k int) {
+	for i, f := range m.fields {
+		if f.flat != nil && int(f.present)+k > m.opt.MaxDistinct {
+			m.unflatten(i)
+		}
+	}
+}
+
+// reclassifyFlat applies the identifier rule's exit test to the flat
+// fields with counts exact enough to decide it, unflattening those that
+// may leave (see above): the fields whose lower bound no longer proves
+// their share above identLeave are settled, side by side. It runs before
+// reclassify reads the counts.
+func (m *Model) reclassifyFlat() {
+	var unsure []int
+	for i, f := range m.fields {
+		if f.flat != nil && float64(f.distinct) < identLeave*float64(f.present) {
+			unsure = append(unsure, i)
+		}
+	}
+	spread(parallelMin*len(unsure), len(unsure), func(k int) { m.settle(m.fields[unsure[k]]) })
+	for _, i := range unsure {
+		if f := m.fields[i]; float64(f.distinct) < flatLeave*float64(f.present) {
+			m.unflatten(i)
+		}
+	}
+}
+
+// sortHashes sorts hs. It is a radix sort, written here because a
+// comparison sort (slices.Sort) of a million hashes took 5–10 times as
+// long, and settling sorts every flat identifier's list. One pass in place
+// on the top 8 bits (an American flag sort: each key swapped into its
+// bucket), then each bucket sorted least-significant digit first, 14 bits
+// a pass, through a scratch buffer the size of the largest bucket: about
+// 1/256 of the keys, as hashes spread evenly, where a plain LSD sort would
+// need a second array as large as the first.
+func sortHashes(hs []uint64) {
+	if len(hs) < 256 {
+		insertionSort(hs)
+		return
+	}
+	var count, next [256]int
+	for _, h := range hs {
+		count[h>>56]++
+	}
+	end := [256]int{}
+	sum, widest := 0, 0
+	for d, c := range count {
+		next[d] = sum
+		sum += c
+		end[d] = sum
+		widest = max(widest, c)
+	}
+	for d := range 256 {
+		for next[d] < end[d] {
+			h := hs[next[d]]
+			for t := int(h >> 56); t != d; t = int(h >> 56) {
+				hs[next[t]], h = h, hs[next[t]]
+				next[t]++
+			}
+			hs[next[d]] = h
+			next[d]++
+		}
+	}
+	scratch := make([]uint64, widest)
+	lo := 0
+	for d := range 256 {
+		sortLow(hs[lo:end[d]], scratch)
+		lo = end[d]
+	}
+}
+
+// sortLow sorts hs, whose keys share their top 8 bits, least-significant
+// digit first through scratch (at least as long as hs).
+func sortLow(hs, scratch []uint64) {
+	const bits, passes = 14, 4 // 56 bits
+	if len(hs) < 256 {
+		insertionSort(hs)
+		return
+	}
+	src, dst := hs, scratch[:len(hs)]
+	var counts [1 << bits]int
+	for p := range passes {
+		shift := p * bits
+		clear(counts[:])
+		for _, h := range src {
+			counts[h>>shift&(1<<bits-1)]++
+		}
+		if counts[src[0]>>shift&(1<<bits-1)] == len(src) {
+			continue // every key has the same digit here
+		}
+		sum := 0
+		for d, c := range counts {
+			counts[d], sum = sum, sum+c
+		}
+		for _, h := range src {
+			d := h >> shift & (1<<bits - 1)
+			dst[counts[d]] = h
+			counts[d]++
+		}
+		src, dst = dst, src
+	}
+	if &src[0] != &hs[0] {
+		copy(hs, src)
+	}
+}
+
+func insertionSort(hs []uint64) {
+	for i := 1; i < len(hs); i++ {
+		for j := i; j > 0 && hs[j] < hs[j-1]; j-- {
+			hs[j], hs[j-1] = hs[j-1], hs[j]
+		}
+	}
+}
