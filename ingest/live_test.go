@@ -157,9 +157,11 @@ func BenchmarkLiveIngest(b *testing.B) {
 
 // memSource hands out lines from memory, with a fault before line
 // faultAt (0: none), as fast as they are asked for, except that it waits
-// for gates[i], when there is one, before it hands out line i+1.
+// for gates[i], when there is one, before it hands out line i+1. With n
+// set it hands out n lines, going round lines.
 type memSource struct {
 	lines   []string
+	n       int
 	faultAt int
 	gates   map[int]chan struct{}
 	eof     chan struct{} // closed at the end, when not nil
@@ -172,7 +174,10 @@ func (s *memSource) Next(ctx context.Context) (parse.Line, error) {
 		s.faulted = true
 		return parse.Line{}, errors.New("the disk hiccupped")
 	}
-	if s.i == len(s.lines) {
+	if s.n == 0 {
+		s.n = len(s.lines)
+	}
+	if s.i == s.n {
 		if s.eof != nil {
 			close(s.eof)
 			s.eof = nil
@@ -187,7 +192,7 @@ func (s *memSource) Next(ctx context.Context) (parse.Line, error) {
 		}
 	}
 	s.i++
-	return parse.Line{Text: []byte(s.lines[s.i-1]), Num: int64(s.i), Source: "mem"}, nil
+	return parse.Line{Text: []byte(s.lines[(s.i-1)%len(s.lines)]), Num: int64(s.i), Source: "mem"}, nil
 }
 
 func (s *memSource) Status() parse.SourceStatus { return parse.SourceStatus{Name: "mem"} }
@@ -315,18 +320,19 @@ func TestLiveEqualsSequential(t *testing.T) {
 
 // BenchmarkLiveWindow is the rate of the live path without a screen: demo
 // lines made beforehand (the reader costs what a file's does), watch's
-// window of the last 100,000 records, no frames asked for until the end.
-// Its lines/s is what the reader, parser and owner goroutines sustain.
+// window of the last 100,000 records, a million lines (all but the first
+// 100,000 evict one), no frames asked for until the end. Its lines/s is
+// what the reader and owner goroutines sustain.
 func BenchmarkLiveWindow(b *testing.B) {
-	const n = 300_000
-	g := demo.New(1, n)
-	lines := make([]string, n)
+	const n = 1_000_000
+	g := demo.New(1, 0)
+	lines := make([]string, 250_000)
 	for i := range lines {
 		lines[i] = string(g.Append(nil))
 	}
 	for b.Loop() {
 		in, _ := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}})
-		src := &memSource{lines: lines, eof: make(chan struct{})}
+		src := &memSource{lines: lines, n: n, eof: make(chan struct{})}
 		eof := src.eof
 		l := StartLive(context.Background(), in, src)
 		<-eof
