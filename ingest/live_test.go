@@ -322,7 +322,9 @@ func TestLiveEqualsSequential(t *testing.T) {
 // lines made beforehand (the reader costs what a file's does), watch's
 // window of the last 100,000 records, a million lines (all but the first
 // 100,000 evict one), no frames asked for until the end. Its lines/s is
-// what the reader and owner goroutines sustain.
+// what the reader and owner goroutines sustain; with no baseline, and
+// with the rolling one that watch and demo compare with unless given
+// --baseline.
 func BenchmarkLiveWindow(b *testing.B) {
 	const n = 1_000_000
 	g := demo.New(1, 0)
@@ -330,17 +332,28 @@ func BenchmarkLiveWindow(b *testing.B) {
 	for i := range lines {
 		lines[i] = string(g.Append(nil))
 	}
-	for b.Loop() {
-		in, _ := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}})
-		src := &memSource{lines: lines, n: n, eof: make(chan struct{})}
-		eof := src.eof
-		l := StartLive(context.Background(), in, src)
-		<-eof
-		for ended := false; !ended; time.Sleep(time.Millisecond) {
-			// A frame would hold up ingest for a snapshot: look only.
-			l.Visit(context.Background(), func() { ended = l.ended })
+	for _, rolling := range []bool{false, true} {
+		name := "baseline=none"
+		if rolling {
+			name = "baseline=rolling"
 		}
-		l.Stop()
+		b.Run(name, func(b *testing.B) {
+			for b.Loop() {
+				in, _ := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}})
+				if rolling {
+					in.UseRollingBaseline()
+				}
+				src := &memSource{lines: lines, n: n, eof: make(chan struct{})}
+				eof := src.eof
+				l := StartLive(context.Background(), in, src)
+				<-eof
+				for ended := false; !ended; time.Sleep(time.Millisecond) {
+					// A frame would hold up ingest for a snapshot: look only.
+					l.Visit(context.Background(), func() { ended = l.ended })
+				}
+				l.Stop()
+			}
+			b.ReportMetric(n*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+		})
 	}
-	b.ReportMetric(n*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
 }
