@@ -49,11 +49,12 @@ var benchSources = []struct {
 
 // benchDemoLines is demo text, made once, that growingFile writes over
 // and over (generating it as it writes would cost the writer more than a
-// logging service spends).
+// logging service spends): 256k lines, more than the window holds, so
+// that the window sees a stream like the demo's (req_id unique in it).
 var benchDemoLines = sync.OnceValue(func() []byte {
 	g := demo.New(1, 0)
 	var b []byte
-	for range 64 << 10 {
+	for range 256 << 10 {
 		b = append(g.Append(b), '\n')
 	}
 	return b
