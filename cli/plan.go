@@ -125,7 +125,9 @@ func (c *planCmd) run(ctx context.Context, std IO, paths []string) error {
 	if errors.Is(readErr, context.Canceled) {
 		return readErr
 	}
+	restoreGC := quietGC()
 	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{})
+	restoreGC()
 	if err != nil {
 		return err
 	}

@@ -5,6 +5,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"os"
+	"runtime/debug"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -193,7 +195,28 @@ func (c *reportCmd) run(ctx context.Context, std IO, paths []string) error {
 // writeReport takes the final snapshot and writes the report whole, unless
 // ctx ends first; then the exit code says what the input was worth. more,
 // when not nil, adds to the report before it is written (--by's groups).
+// snapshotGCPercent is the collector's setting while a headless run takes
+// its one deep snapshot (main sets 25 for the reading; GOGC in the
+// environment wins over both).
+const snapshotGCPercent = 15
+
+// quietGC prepares for a headless run's one deep snapshot: the stream is
+// read, so the memory its reading left behind goes back to the system, and
+// the analyses' short-lived tables are collected a little sooner. On 1M
+// demo lines (medians of 2, load 6): peak RSS 124 → 116 MB for 0.05 CPU-s
+// more; at 10%, 112 MB for 0.3 CPU-s more. It returns the function that
+// restores the collector's setting.
+func quietGC() (restore func()) {
+	debug.FreeOSMemory()
+	if os.Getenv("GOGC") != "" {
+		return func() {}
+	}
+	old := debug.SetGCPercent(snapshotGCPercent)
+	return func() { debug.SetGCPercent(old) }
+}
+
 func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error, more func(*report.Report, *model.Snapshot) error) error {
+	defer quietGC()()
 	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
 	if err != nil {
 		return err

@@ -17,12 +17,19 @@ import (
 var bucketEdges = [4]int64{10, 18, 32, 56}
 
 // Buckets is the FIELD~log companion. It keeps each label made so that
-// labelling allocates only for a bucket not seen before.
+// labelling allocates only for a bucket not seen before, and the labels of
+// the first memoMax values it sees, so that a value seen before costs one
+// map look-up instead of reading a number and a logarithm (a third of the
+// time on the demo's latencies).
 type Buckets struct {
 	source, name string
-	labels       map[int]string // bucket code → label
+	labels       map[int]string    // bucket code → label
+	memo         map[string]string // value → label, at most memoMax
 	out          []byte
 }
+
+// memoMax is how many values a Buckets remembers the label of.
+const memoMax = 1 << 12
 
 // NewBuckets returns the ~log companion of field source.
 func NewBuckets(source string) *Buckets {
@@ -40,7 +47,17 @@ func (*Buckets) Method() string { return "log10 buckets, 4 per decade" }
 
 // Value implements Companion.
 func (b *Buckets) Value(v []byte) []byte {
-	b.out = append(b.out[:0], b.label(v)...)
+	l, ok := b.memo[string(v)]
+	if !ok {
+		l = b.label(v)
+		if b.memo == nil {
+			b.memo = make(map[string]string)
+		}
+		if len(b.memo) < memoMax {
+			b.memo[string(v)] = l
+		}
+	}
+	b.out = append(b.out[:0], l...)
 	return b.out
 }
 

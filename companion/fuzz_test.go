@@ -1,6 +1,7 @@
 package companion
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -24,6 +25,14 @@ func FuzzTemplate(f *testing.F) {
 			t.Fatalf("%d words", len(tp.words))
 		}
 		first := string(tp.masked())
+		// The words read back from the masked text (Resolve, after a
+		// Labeller) are the words mask made.
+		words := fmt.Sprintf("%q", tp.words)
+		back := NewTemplates("msg")
+		back.split([]byte(first))
+		if got := fmt.Sprintf("%q", back.words); got != words {
+			t.Fatalf("masked %q splits into %s, mask made %s", first, got, words)
+		}
 		tp.mask([]byte(msg))
 		if again := string(tp.masked()); again != first {
 			t.Fatalf("mask not deterministic: %q then %q", first, again)

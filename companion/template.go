@@ -112,6 +112,12 @@ func (t *Templates) template(msg []byte) []byte {
 // group finds or makes msg's group; nil past the cap.
 func (t *Templates) group(msg []byte) *tgroup {
 	t.mask(msg)
+	return t.groupWords()
+}
+
+// groupWords finds or makes the group of the masked words in t.words; nil
+// past the cap.
+func (t *Templates) groupWords() *tgroup {
 	n := len(t.words)
 	root := t.roots[n]
 	if root == nil {

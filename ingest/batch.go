@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 
+	"bitsift/companion"
 	"bitsift/parse"
 )
 
@@ -18,11 +19,13 @@ import (
 type batch struct {
 	text  []byte
 	lines []batchLine
-	// recs[i] is line i's record, once parsed (parsed is set).
-	recs   []parse.Record
-	parsed bool
-	ready  chan struct{} // the pipeline's worker is done with it
-	end    error         // the pipeline's source ended after the lines (io.EOF, or ctx's error)
+	// recs[i] is line i's record, once parsed (parsed is set); labelled:
+	// its companion fields are there, to be resolved (companion.Labeller).
+	recs     []parse.Record
+	parsed   bool
+	labelled bool
+	ready    chan struct{} // the pipeline's worker is done with it
+	end      error         // the pipeline's source ended after the lines (io.EOF, or ctx's error)
 }
 
 type batchLine struct {
@@ -37,6 +40,7 @@ type batchLine struct {
 	reason  string // why the line was rejected
 	t       int64
 	hasTime bool
+	from    int // the record's first companion field, when labelled
 }
 
 // lineKind is what a line turned out to be.
@@ -58,7 +62,7 @@ func (b *batch) add(l parse.Line, err error) {
 func (b *batch) reset() {
 	b.text = b.text[:0]
 	b.lines = b.lines[:0]
-	b.parsed, b.end = false, nil
+	b.parsed, b.labelled, b.end = false, false, nil
 }
 
 func (b *batch) line(i int) parse.Line {
@@ -89,8 +93,9 @@ func parseLine(f parse.Format, text []byte, tooLong bool, rec *parse.Record) (li
 
 // parseBatch parses every line of b (a pipeline worker, on a format that
 // keeps nothing from one line to the next), finding record times with its
-// own copy of a settled TimeFinder.
-func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
+// own copy of a settled TimeFinder, and appending the companion fields
+// with its own Labeller (none when lab is nil).
+func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder, lab *companion.Labeller) {
 	for len(b.recs) < len(b.lines) {
 		b.recs = append(b.recs, parse.Record{})
 	}
@@ -104,9 +109,13 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder) {
 		l.hasTime = false
 		if l.kind == lineRecord {
 			l.t, l.hasTime = times.Find(rec)
+			if lab != nil {
+				l.from = rec.Len()
+				lab.Apply(rec)
+			}
 		}
 	}
-	b.parsed = true
+	b.parsed, b.labelled = true, lab != nil
 }
 
 // takeBatch takes b's lines in order: faults are recorded, the records of
@@ -154,7 +163,12 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 			in.markTime()
 		}
 		rec := &b.recs[i]
-		if !in.prepare(rec, l.num, t, l.source) {
+		if b.labelled {
+			in.comp.Resolve(rec, l.from)
+		} else {
+			in.comp.Apply(rec)
+		}
+		if !in.admit(rec, l.num, t, l.source) {
 			continue // left out by --where, --since or --until
 		}
 		in.held.recs = append(in.held.recs, rec)

@@ -389,16 +389,21 @@ func (in *Ingester) commit(rec *parse.Record, num, t int64, source string) {
 	h.times = append(h.times, t)
 }
 
-// prepare adds the companions to a parsed record, redacts it, and shows it
-// to the Observer (which does not read the model, so a batch's records
-// may be shown before the model takes them). It says whether the record
-// goes on to the model: false when --where, --since or --until leave it
-// out (counted in Input.Filtered).
+// prepare adds the companions to a parsed record and admits it (admit).
 func (in *Ingester) prepare(rec *parse.Record, num, t int64, source string) bool {
+	in.comp.Apply(rec)
+	return in.admit(rec, num, t, source)
+}
+
+// admit takes a record that has its companion fields: it filters it,
+// redacts it, and shows it to the Observer (which does not read the model,
+// so a batch's records may be shown before the model takes them). It says
+// whether the record goes on to the model: false when --where, --since or
+// --until leave it out (counted in Input.Filtered).
+func (in *Ingester) admit(rec *parse.Record, num, t int64, source string) bool {
 	if rec.DupKeys {
 		in.input.DupKeyRecords++
 	}
-	in.comp.Apply(rec)
 	if in.cfg.Filter.Active() && !in.cfg.Filter.Keep(rec, t) {
 		in.input.Filtered++
 		if in.cfg.Observer != nil {

@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -12,6 +13,7 @@ import (
 	"testing"
 	"time"
 
+	"bitsift/companion"
 	"bitsift/demo"
 	"bitsift/model"
 	"bitsift/parse"
@@ -97,6 +99,93 @@ func TestPipelineEqualsSequential(t *testing.T) {
 					if x != y && !(math.IsNaN(x) && math.IsNaN(y)) {
 						t.Errorf("H(%s,%s) = %v, want %v", want.Fields[i].Name, want.Fields[j].Name, x, y)
 					}
+				}
+			}
+		})
+	}
+}
+
+// TestPipelineEqualsSequentialCompanions: with companions that the
+// pipeline's workers label (a latency's buckets, a message's template,
+// made in input order from the masked text the workers give), and with a
+// --where on each, the pipeline gives the snapshot and accounting of the
+// line-by-line read, template texts included.
+func TestPipelineEqualsSequentialCompanions(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	var data bytes.Buffer
+	events := []string{
+		"crane %d lifted box %d onto berth %d",
+		"crane %d stopped: wind %d knots at mast %d",
+		"gate %d opened for truck %d lane %d",
+		"reefer %d power lost on row %d tier %d",
+		"pilot %d boarded vessel %d at buoy %d",
+	}
+	for i := 0; i < 8000; i++ {
+		e := events[(i*7+i/13)%len(events)]
+		fmt.Fprintf(&data, `{"msg":"`+e+`","latency":%d.%d,"berth":"b%d"}`+"\n", i%17, i%1000, i%9, i%31, i%10, i%5)
+		if i%1500 == 3 {
+			data.WriteString("not json\n")
+		}
+	}
+	path := filepath.Join(t.TempDir(), "yard.jsonl")
+	os.WriteFile(path, data.Bytes(), 0o644)
+	// Conditions made by hand: ParseCond reads the "~" of a companion's
+	// name as its regexp operator.
+	for _, where := range []*model.Cond{nil, {Field: "msg~template", Value: "#2", Not: true}, {Field: "latency~log", Value: "[18,32)"}} {
+		name := "all"
+		if where != nil {
+			name = where.Field
+		}
+		t.Run(name, func(t *testing.T) {
+			run := func(parallel bool) (*model.Snapshot, *Ingester) {
+				clock := time.Unix(1e9, 0)
+				cfg := Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 3000}},
+					Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }}
+				if where != nil {
+					cfg.Filter = &Filter{Where: []model.Cond{*where}}
+				}
+				in, err := New(cfg)
+				if err != nil {
+					t.Fatal(err)
+				}
+				in.AddSource("yard")
+				var src parse.Source = parse.NewFileSource([]string{path}, 0)
+				if !parallel {
+					src = seqSource{src}
+				}
+				if err := in.ReadSource(context.Background(), src); err != nil {
+					t.Fatal(err)
+				}
+				return in.Snapshot(model.SnapshotOptions{}), in
+			}
+			got, gotIn := run(true)
+			want, wantIn := run(false)
+			got.Taken, want.Taken = time.Time{}, time.Time{}
+			if n := len(wantIn.Companions()); n != 2 {
+				t.Fatalf("%d companions: the test wants a template and buckets", n)
+			}
+			if where != nil && (want.Input.Filtered == 0 || want.Records == 0) {
+				t.Errorf("--where %v kept %d, left out %d: the test input is not what it should be", where, want.Records, want.Input.Filtered)
+			}
+			if !reflect.DeepEqual(got.Input, want.Input) {
+				t.Errorf("input accounting differs:\n got %+v\nwant %+v", got.Input, want.Input)
+			}
+			if !reflect.DeepEqual(got.Fields, want.Fields) || got.Records != want.Records {
+				for i := range want.Fields {
+					if i < len(got.Fields) && !reflect.DeepEqual(got.Fields[i], want.Fields[i]) {
+						t.Errorf("field %d:\n got %+v\nwant %+v", i, got.Fields[i], want.Fields[i])
+					}
+				}
+				t.Errorf("figures differ: %d/%d records, %d/%d fields", got.Records, want.Records, len(got.Fields), len(want.Fields))
+			}
+			for id := 1; ; id++ {
+				a, okA := gotIn.TemplateText("msg~template", companion.FormatID(id))
+				b, okB := wantIn.TemplateText("msg~template", companion.FormatID(id))
+				if a != b || okA != okB {
+					t.Errorf("template #%d: %q, want %q", id, a, b)
+				}
+				if !okB {
+					break
 				}
 			}
 		})

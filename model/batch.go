@@ -281,19 +281,25 @@ func spread(work, n int, fn func(i int)) {
 		return
 	}
 	var next atomic.Int64
+	run := func() {
+		for {
+			i := int(next.Add(1) - 1)
+			if i >= n {
+				return
+			}
+			fn(i)
+		}
+	}
+	// The caller works too: one goroutine fewer to start and to schedule
+	// beside the parsing workers.
 	var wg sync.WaitGroup
-	for range workers {
+	for range workers - 1 {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			for {
-				i := int(next.Add(1) - 1)
-				if i >= n {
-					return
-				}
-				fn(i)
-			}
+			run()
 		}()
 	}
+	run()
 	wg.Wait()
 }

@@ -153,7 +153,9 @@ func (m *Model) settle(f *field) {
 		slices *= 2
 	}
 	shift := 64 - bits.Len(uint(slices-1))
-	var buf []uint64
+	// A slice holds about present/slices hashes (they spread evenly);
+	// room for a little more saves regrowing the buffer.
+	buf := make([]uint64, 0, int(f.present)/slices+int(f.present)/slices/16+64)
 	var distinct, s int64
 	for sl := range slices {
 		buf = buf[:0]

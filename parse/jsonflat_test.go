@@ -101,3 +101,26 @@ func FuzzJSONFlat(f *testing.F) {
 	f.Add([]byte(`{"a":"b","a":"c"}`))
 	f.Fuzz(func(t *testing.T, line []byte) { checkFlat(t, line) })
 }
+
+// Keys whose signatures (keySig) collide are still told apart, and a
+// repeated key is still found after a collision: the flat scanner takes
+// the first line and leaves the second to the full parser.
+func TestJSONFlatKeySignatures(t *testing.T) {
+	bySig := map[uint]string{}
+	var a, b string
+	for i := 0; a == ""; i++ {
+		k := "k" + strconv.Itoa(i)
+		if o, ok := bySig[keySig([]byte(k))]; ok {
+			a, b = o, k
+		}
+		bySig[keySig([]byte(k))] = k
+	}
+	distinct := `{"` + a + `":"1","` + b + `":"2","berth":"b7"}`
+	if !checkFlat(t, []byte(distinct)) {
+		t.Errorf("%s: keys %s and %s share a signature but differ; the flat scanner should take it", distinct, a, b)
+	}
+	repeated := `{"` + a + `":"1","` + b + `":"2","` + b + `":"3"}`
+	if checkFlat(t, []byte(repeated)) {
+		t.Errorf("%s: the flat scanner took a repeated key", repeated)
+	}
+}

@@ -63,81 +63,113 @@ func (*Logfmt) Sniff(line []byte) float64 {
 	return 0.85 * float64(pairs) / float64(words)
 }
 
-// Parse implements Format.
+// Parse implements Format. The line is copied into the record once and
+// each key and plain value is a span of that copy (no copy per field, as
+// the flat JSON scanner); a quoted value with escapes is unescaped after
+// it, and a bare key's "true" too.
 func (*Logfmt) Parse(line []byte, rec *Record) error {
-	i := 0
-	n := len(line)
+	base := len(rec.buf)
+	rec.buf = append(rec.buf, line...)
+	// s stays the line's copy even when appends below move rec.buf.
+	s := rec.buf[base:len(rec.buf):len(rec.buf)]
+	b := int32(base)
+	i, n := 0, len(s)
 	pairs := false
 	for {
-		for i < n && (line[i] == ' ' || line[i] == '\t') {
+		for i < n && (s[i] == ' ' || s[i] == '\t') {
 			i++
 		}
 		if i >= n {
 			break
 		}
 		ks := i
-		for i < n && line[i] != '=' && line[i] != ' ' && line[i] != '\t' {
-			if line[i] == '"' {
-				return reject("quote in logfmt key")
-			}
+		for i < n && !logfmtKeyStop[s[i]] {
 			i++
 		}
-		key := line[ks:i]
-		if len(key) == 0 {
+		if i < n && s[i] == '"' {
+			return reject("quote in logfmt key")
+		}
+		if i == ks {
 			return reject("logfmt pair with an empty key")
 		}
-		if i >= n || line[i] != '=' {
-			k0, v0 := rec.begin(key)
+		k0, k1 := b+int32(ks), b+int32(i)
+		if i >= n || s[i] != '=' {
+			v0 := int32(len(rec.buf))
 			rec.buf = append(rec.buf, "true"...)
-			rec.end(k0, v0)
+			rec.spans = append(rec.spans, span{k0, k1, v0, v0 + 4})
 			continue
 		}
 		i++ // '='
 		pairs = true
-		k0, v0 := rec.begin(key)
-		if i < n && line[i] == '"' {
+		if i < n && s[i] == '"' {
 			i++
-			closed := false
+			vs := i
+			closed, escaped := false, false
 			for i < n {
-				c := line[i]
+				c := s[i]
 				if c == '"' {
-					i++
 					closed = true
 					break
 				}
 				if c == '\\' && i+1 < n {
+					escaped = true
 					i++
-					switch line[i] {
-					case 'n':
-						c = '\n'
-					case 't':
-						c = '\t'
-					case 'r':
-						c = '\r'
-					default:
-						c = line[i]
-					}
 				}
-				rec.buf = append(rec.buf, c)
 				i++
 			}
 			if !closed {
 				return reject("unterminated quoted value in logfmt")
 			}
-			if i < n && line[i] != ' ' && line[i] != '\t' {
+			ve := i
+			i++ // the closing quote
+			if i < n && s[i] != ' ' && s[i] != '\t' {
 				return reject("text right after a quoted logfmt value")
 			}
-		} else {
-			vs := i
-			for i < n && line[i] != ' ' && line[i] != '\t' {
-				i++
+			if !escaped {
+				rec.spans = append(rec.spans, span{k0, k1, b + int32(vs), b + int32(ve)})
+				continue
 			}
-			rec.buf = append(rec.buf, line[vs:i]...)
+			v0 := int32(len(rec.buf))
+			rec.buf = unescapeLogfmt(rec.buf, s[vs:ve])
+			rec.spans = append(rec.spans, span{k0, k1, v0, int32(len(rec.buf))})
+			continue
 		}
-		rec.end(k0, v0)
+		vs := i
+		for i < n && s[i] != ' ' && s[i] != '\t' {
+			i++
+		}
+		rec.spans = append(rec.spans, span{k0, k1, b + int32(vs), b + int32(i)})
 	}
 	if !pairs {
 		return reject("no key=value pair: not logfmt")
 	}
 	return nil
+}
+
+// logfmtKeyStop ends a key: its '=', a space or tab, or a quote (which no
+// key may hold).
+var logfmtKeyStop = [256]bool{'=': true, ' ': true, '\t': true, '"': true}
+
+// unescapeLogfmt appends the quoted text q (without its quotes) to dst
+// with its escapes read: \n, \t and \r are a newline, tab and return, and
+// a backslash before any other byte is that byte.
+func unescapeLogfmt(dst, q []byte) []byte {
+	for i := 0; i < len(q); i++ {
+		c := q[i]
+		if c == '\\' && i+1 < len(q) {
+			i++
+			switch q[i] {
+			case 'n':
+				c = '\n'
+			case 't':
+				c = '\t'
+			case 'r':
+				c = '\r'
+			default:
+				c = q[i]
+			}
+		}
+		dst = append(dst, c)
+	}
+	return dst
 }

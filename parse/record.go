@@ -92,6 +92,14 @@ func (r *Record) AddKV(key string, value []byte) {
 	r.spans = append(r.spans, span{k0, v0, v0, int32(len(r.buf))})
 }
 
+// SetValue replaces the value of field i by a copy of v. The old value's
+// text stays in the buffer, unused, until the next Reset.
+func (r *Record) SetValue(i int, v []byte) {
+	v0 := int32(len(r.buf))
+	r.buf = append(r.buf, v...)
+	r.spans[i].v0, r.spans[i].v1 = v0, int32(len(r.buf))
+}
+
 // mark is a point in a record to roll back to.
 type mark struct{ buf, spans int }
 
