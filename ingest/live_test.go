@@ -2,6 +2,12 @@ package ingest
 
 import (
 	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"reflect"
+	"strings"
 	"testing"
 	"time"
 
@@ -26,6 +32,23 @@ func waitEnded(t *testing.T, l *Live) *Frame {
 	}
 	t.Fatal("the live reader did not reach the end of a finite source")
 	return nil
+}
+
+// waitLines polls until the live reader has taken n lines.
+func waitLines(t *testing.T, l *Live, n int64) {
+	t.Helper()
+	deadline := time.Now().Add(30 * time.Second)
+	for time.Now().Before(deadline) {
+		f, err := l.Frame(context.Background(), model.SnapshotOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f.Snap.Input.Lines >= n {
+			return
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	t.Fatalf("the live reader did not take %d lines", n)
 }
 
 func TestLiveReadsEverything(t *testing.T) {
@@ -130,4 +153,207 @@ func BenchmarkLiveIngest(b *testing.B) {
 		l.Stop()
 	}
 	b.ReportMetric(50_000*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+}
+
+// memSource hands out lines from memory, with a fault before line
+// faultAt (0: none), as fast as they are asked for, except that it waits
+// for gates[i], when there is one, before it hands out line i+1. With n
+// set it hands out n lines, going round lines.
+type memSource struct {
+	lines   []string
+	n       int
+	faultAt int
+	gates   map[int]chan struct{}
+	eof     chan struct{} // closed at the end, when not nil
+	i       int
+	faulted bool
+}
+
+func (s *memSource) Next(ctx context.Context) (parse.Line, error) {
+	if s.i == s.faultAt && s.faultAt > 0 && !s.faulted {
+		s.faulted = true
+		return parse.Line{}, errors.New("the disk hiccupped")
+	}
+	if s.n == 0 {
+		s.n = len(s.lines)
+	}
+	if s.i == s.n {
+		if s.eof != nil {
+			close(s.eof)
+			s.eof = nil
+		}
+		return parse.Line{}, io.EOF
+	}
+	if g := s.gates[s.i]; g != nil {
+		select {
+		case <-g:
+		case <-ctx.Done():
+			return parse.Line{}, ctx.Err()
+		}
+	}
+	s.i++
+	return parse.Line{Text: []byte(s.lines[(s.i-1)%len(s.lines)]), Num: int64(s.i), Source: "mem"}, nil
+}
+
+func (s *memSource) Status() parse.SourceStatus { return parse.SourceStatus{Name: "mem"} }
+func (s *memSource) Close() error               { return nil }
+
+// TestLiveEqualsSequential: the live runner, which takes lines in batches
+// handed over between goroutines, gives the same figures and the same
+// accounting (lines, rejections and their examples, faults, warnings) as
+// reading the source line by line, on a stream with rejected, blank and
+// too long lines, a fault, and a change of shape from JSON to logfmt (read
+// again by detection after a run of rejections) with records that have no
+// time. Batch boundaries fall where they would be easiest to get wrong:
+// between two runs of rejections that only the records between them keep
+// from making detection look again.
+func TestLiveEqualsSequential(t *testing.T) {
+	g := demo.New(5, 20000)
+	var lines []string
+	var gates []int // the live run hands these lines over in a batch of their own
+	for i := range 20000 {
+		lines = append(lines, string(g.Append(nil)))
+		if i == 8000 || i == 14000 {
+			// Two runs of lines JSON cannot read, each shorter than
+			// the run that makes detection look again, with clean
+			// records between them, which break the run. The first
+			// run ends a batch and the second begins one, so that
+			// only whole batches of records between them break it.
+			if i == 14000 {
+				gates = append(gates, len(lines))
+			}
+			for j := range 20 {
+				lines = append(lines, fmt.Sprintf("wharf=%d crane=idle", j))
+			}
+			if i == 8000 {
+				gates = append(gates, len(lines))
+			}
+		}
+		if i >= 3000 {
+			continue // then clean lines, several batches of them
+		}
+		switch i % 997 {
+		case 5:
+			lines = append(lines, "not json at all")
+		case 6:
+			lines = append(lines, "   ")
+		case 7:
+			lines = append(lines, `{"host":"`+strings.Repeat("x", 700)+`"}`)
+		case 8:
+			lines = append(lines, `{"host":"broken`)
+		}
+	}
+	for i := range 9000 {
+		l := fmt.Sprintf("level=info host=qs-%d route=/v1/r%d status=%d", i%7, i%5, 200+i%3)
+		if i%10 != 0 { // every tenth record has no time: it gets the clock's
+			l = fmt.Sprintf("ts=2026-03-14T07:%02d:%02d.%03dZ ", i/3600%60, i/60%60, i%1000) + l
+		}
+		lines = append(lines, l)
+	}
+
+	for _, w := range []model.Window{{Kind: model.WindowAll}, {Kind: model.WindowRecords, Records: 1500}} {
+		t.Run(w.String(), func(t *testing.T) {
+			newIn := func() *Ingester {
+				clock := time.Unix(1e9, 0)
+				in, err := New(Config{MaxLine: 600, Model: model.Options{Window: w},
+					Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }})
+				if err != nil {
+					t.Fatal(err)
+				}
+				return in
+			}
+			ref := newIn()
+			ref.AddSource("mem")
+			if err := ref.ReadSource(context.Background(), &memSource{lines: lines, faultAt: 2500}); err == nil {
+				t.Fatal("the reference read no fault")
+			}
+			want := ref.Snapshot(model.SnapshotOptions{})
+
+			in := newIn()
+			src := &memSource{lines: lines, faultAt: 2500, gates: map[int]chan struct{}{}}
+			for _, i := range gates {
+				src.gates[i] = make(chan struct{})
+			}
+			l := StartLive(context.Background(), in, src)
+			for _, i := range gates {
+				waitLines(t, l, int64(i))
+				close(src.gates[i])
+			}
+			waitEnded(t, l)
+			got, err := l.Frame(context.Background(), model.SnapshotOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			l.Stop()
+
+			if want.Input.Format != "json+logfmt" || len(want.Input.Faults) != 1 || want.Input.Rejected < 40 {
+				t.Fatalf("reference: format %q, faults %q, %d rejected: the test input is not what it should be",
+					want.Input.Format, want.Input.Faults, want.Input.Rejected)
+			}
+			if g, w := in.Warnings(), ref.Warnings(); !reflect.DeepEqual(g, w) {
+				t.Errorf("warnings %q, want %q", g, w)
+			}
+			s := got.Snap
+			if !reflect.DeepEqual(s.Input, want.Input) {
+				t.Errorf("input accounting differs:\n got %+v\nwant %+v", s.Input, want.Input)
+			}
+			if !reflect.DeepEqual(s.Fields, want.Fields) || s.Records != want.Records || s.Seen != want.Seen ||
+				s.Oldest != want.Oldest || s.Newest != want.Newest {
+				for i := range want.Fields {
+					if i < len(s.Fields) && !reflect.DeepEqual(s.Fields[i], want.Fields[i]) {
+						t.Errorf("field %d:\n got %+v\nwant %+v", i, s.Fields[i], want.Fields[i])
+					}
+				}
+				t.Errorf("figures differ: %d/%d records, %d/%d fields", s.Records, want.Records, len(s.Fields), len(want.Fields))
+			}
+			for i := range want.Fields {
+				for j := range want.Fields {
+					x, y := s.Joint(i, j), want.Joint(i, j)
+					if x != y && !(math.IsNaN(x) && math.IsNaN(y)) {
+						t.Errorf("H(%s,%s) = %v, want %v", want.Fields[i].Name, want.Fields[j].Name, x, y)
+					}
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkLiveWindow is the rate of the live path without a screen: demo
+// lines made beforehand (the reader costs what a file's does), watch's
+// window of the last 100,000 records, a million lines (all but the first
+// 100,000 evict one), no frames asked for until the end. Its lines/s is
+// what the reader and owner goroutines sustain; with no baseline, and
+// with the rolling one that watch and demo compare with unless given
+// --baseline.
+func BenchmarkLiveWindow(b *testing.B) {
+	const n = 1_000_000
+	g := demo.New(1, 0)
+	lines := make([]string, 250_000)
+	for i := range lines {
+		lines[i] = string(g.Append(nil))
+	}
+	for _, rolling := range []bool{false, true} {
+		name := "baseline=none"
+		if rolling {
+			name = "baseline=rolling"
+		}
+		b.Run(name, func(b *testing.B) {
+			for b.Loop() {
+				in, _ := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 100_000}}})
+				if rolling {
+					in.UseRollingBaseline()
+				}
+				src := &memSource{lines: lines, n: n, eof: make(chan struct{})}
+				eof := src.eof
+				l := StartLive(context.Background(), in, src)
+				<-eof
+				for ended := false; !ended; time.Sleep(time.Millisecond) {
+					// A frame would hold up ingest for a snapshot: look only.
+					l.Visit(context.Background(), func() { ended = l.ended })
+				}
+				l.Stop()
+			}
+			b.ReportMetric(n*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+		})
+	}
 }

@@ -133,10 +133,32 @@ func (m *Model) afterAdd() {
 		m.base.sinceH = 0
 		m.noteEntropies()
 	}
+	m.maybeRoll()
+}
+
+// maybeRoll rolls the baseline when a rolling one's period has passed.
+func (m *Model) maybeRoll() {
 	if m.base.mode == BaselineRolling && m.rollClock()-m.base.lastRoll >= m.rollPeriod() {
 		m.base.lastRoll = m.rollClock()
 		m.rollProfile()
 	}
+}
+
+// untilRoll is how many of the next records (times) Add would take up to
+// and including the one after which it rolls a rolling baseline.
+func (m *Model) untilRoll(times []int64) int {
+	period := m.rollPeriod()
+	if m.opt.Window.Kind == WindowDuration {
+		mt := m.maxTime
+		for r, t := range times {
+			mt = max(mt, t)
+			if mt-m.base.lastRoll >= period {
+				return r + 1
+			}
+		}
+		return len(times)
+	}
+	return int(max(1, m.base.lastRoll+period-m.seen))
 }
 
 func (m *Model) rollProfile() {

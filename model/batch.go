@@ -25,9 +25,9 @@ import (
 //  5. the window evicts what it no longer covers, pair-major too.
 //
 // A segment ends where Add would do more than count: at a reclassification
-// (every reclassEvery records), an entropy-history note, and, with a
-// rolling baseline or an identifier field near its MaxDistinct cap, after
-// every record. Evicting at the end of a segment rather than after each
+// (every reclassEvery records), an entropy-history note, and a rolling
+// baseline's roll (after the record that ends its period: a window's
+// length of records, or of time). Evicting at the end of a segment rather than after each
 // record evicts the same records: a records window keeps the newest N, and
 // a duration window's newest time only grows.
 
@@ -59,7 +59,7 @@ type entry struct {
 // order, as Add does for each.
 func (m *Model) AddBatch(recs []*parse.Record, lines, times []int64) {
 	for len(recs) > 0 {
-		k := m.segmentLen(len(recs))
+		k := m.segmentLen(times)
 		if k == 1 {
 			m.Add(recs[0], lines[0], times[0])
 		} else {
@@ -69,12 +69,12 @@ func (m *Model) AddBatch(recs []*parse.Record, lines, times []int64) {
 	}
 }
 
-// segmentLen is how many of the next n records one segment may take (see
-// above).
-func (m *Model) segmentLen(n int) int {
-	k := min(n, segmentMax, reclassEvery-m.sinceReclass, m.historyEvery()-m.base.sinceH)
+// segmentLen is how many of the next records (times) one segment may take
+// (see above).
+func (m *Model) segmentLen(times []int64) int {
+	k := min(len(times), segmentMax, reclassEvery-m.sinceReclass, m.historyEvery()-m.base.sinceH)
 	if m.base.mode == BaselineRolling {
-		return 1
+		k = min(k, m.untilRoll(times))
 	}
 	return max(k, 1)
 }
@@ -188,6 +188,9 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	}
 	spread((k+e)*len(m.pairs), len(m.pairs), func(i int) {
 		p := &m.pairs[i]
+		if p.virt {
+			return // constant field: made when read (constpairs.go)
+		}
 		p.m.count(cols[p.a*k:(p.a+1)*k], cols[p.b*k:(p.b+1)*k])
 		p.m.uncount(ev[p.a*e:(p.a+1)*e], ev[p.b*e:(p.b+1)*e])
 	})
@@ -197,6 +200,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	if m.opt.Window.Kind == WindowDuration {
 		m.st.shrink()
 	}
+	m.checkVirtual()
 	m.sinceReclass += k
 	if m.sinceReclass >= reclassEvery {
 		m.sinceReclass = 0
@@ -207,6 +211,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		m.base.sinceH = 0
 		m.noteEntropies()
 	}
+	m.maybeRoll()
 }
 
 // evictions fills b.after[r] with how many records Add would have evicted
@@ -281,19 +286,25 @@ func spread(work, n int, fn func(i int)) {
 		return
 	}
 	var next atomic.Int64
+	run := func() {
+		for {
+			i := int(next.Add(1) - 1)
+			if i >= n {
+				return
+			}
+			fn(i)
+		}
+	}
+	// The caller works too: one goroutine fewer to start and to schedule
+	// beside the parsing workers.
 	var wg sync.WaitGroup
-	for range workers {
+	for range workers - 1 {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			for {
-				i := int(next.Add(1) - 1)
-				if i >= n {
-					return
-				}
-				fn(i)
-			}
+			run()
 		}()
 	}
+	run()
 	wg.Wait()
 }

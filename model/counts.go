@@ -108,6 +108,7 @@ func (m *Model) Counts(opt CountOptions) *CountTables {
 		opt.SketchK = 1 << 16
 	}
 	m.settleAll()
+	m.realizePairs()
 	n := int64(m.st.n)
 	ct := &CountTables{Records: n}
 	if n > 0 {

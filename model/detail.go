@@ -49,6 +49,7 @@ func (m *Model) detail(fi, gi, rows, top int) *Detail {
 	if fi == gi {
 		return nil
 	}
+	m.realizePairs()
 	a, b := min(fi, gi), max(fi, gi)
 	pi, ok := m.pairAt[[2]int{a, b}]
 	if !ok {

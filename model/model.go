@@ -75,6 +75,9 @@ const (
 type pair struct {
 	a, b int
 	m    *cellMap
+	// virt: field c (a or b) is constant, and m is nil: see constpairs.go.
+	virt bool
+	c    int
 }
 
 // Model holds the window's records and every table over them. It is not
@@ -185,6 +188,9 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 	cur, tab := m.cur, clogc0
 	for i := range m.pairs {
 		p := &m.pairs[i]
+		if p.virt {
+			continue
+		}
 		cm := p.m
 		a, b := uint64(cur[p.a]), uint64(cur[p.b])
 		if a < cm.dh && b < cm.dw {
@@ -208,6 +214,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 		m.maxTime = t
 	}
 	m.evict()
+	m.checkVirtual()
 	m.sinceReclass++
 	if m.sinceReclass >= reclassEvery {
 		m.sinceReclass = 0
@@ -240,8 +247,9 @@ func (m *Model) popOldest() {
 		}
 	}
 	for i := range m.pairs {
-		p := &m.pairs[i]
-		p.m.dec(uint64(idAt(row, p.a))<<32 | uint64(idAt(row, p.b)))
+		if p := &m.pairs[i]; !p.virt {
+			p.m.dec(uint64(idAt(row, p.a))<<32 | uint64(idAt(row, p.b)))
+		}
 	}
 	m.st.pop()
 }
@@ -340,7 +348,7 @@ func (m *Model) untrack(idx int) {
 	for _, p := range m.pairs {
 		if p.a != idx && p.b != idx {
 			kept = append(kept, p)
-		} else {
+		} else if !p.virt {
 			p.m.release()
 		}
 	}
@@ -388,6 +396,7 @@ func (m *Model) reclassify() {
 			m.track(i)
 		}
 	}
+	m.virtualizePairs()
 }
 
 // Flush reclassifies fields now rather than at the next multiple of

@@ -241,6 +241,7 @@ func (m *Model) snapshot(opt SnapshotOptions) *Snapshot {
 		opt.TopValues = 10
 	}
 	m.settleAll()
+	m.realizePairs()
 	n := int64(m.st.n)
 	s := &Snapshot{
 		Taken:         now(),

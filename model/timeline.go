@@ -74,6 +74,7 @@ const (
 //
 // It scans every record of the window once: O(records·(fields + rules)).
 func (m *Model) Timeline(s *Snapshot, sources []string) []TimelineEntry {
+	m.realizePairs()
 	n := m.st.n
 	if n == 0 {
 		return []TimelineEntry{}

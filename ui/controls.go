@@ -20,7 +20,7 @@ func (m Model) pause() (tea.Model, tea.Cmd) {
 			p.Pause()
 			m.say("replay paused: n lets one window through, space resumes")
 		}
-		return m, m.fetch(true)
+		return m.fetchOnce()
 	}
 	m.paused = !m.paused
 	m.gen++
@@ -40,7 +40,7 @@ func (m Model) step() (tea.Model, tea.Cmd) {
 	n := stepRecords(m.e.frame)
 	p.Step(n)
 	m.say("replay: " + count(int64(n)) + " lines on, then paused (space resumes)")
-	return m, m.fetch(true)
+	return m.fetchOnce()
 }
 
 // stepRecords is one window of lines: the window's length for a record
@@ -84,7 +84,7 @@ func (m Model) nextWindow() (tea.Model, tea.Cmd) {
 	if m.paused {
 		return m, nil
 	}
-	return m, m.fetch(true)
+	return m.fetchOnce()
 }
 
 // windowGrows says whether next may hold more records than cur: the

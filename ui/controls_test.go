@@ -3,6 +3,8 @@ package ui
 import (
 	"testing"
 
+	tea "github.com/charmbracelet/bubbletea"
+
 	"bitsift/ingest"
 )
 
@@ -58,4 +60,48 @@ func TestReplayKeys(t *testing.T) {
 			t.Errorf("baseline requests = %v, want pin then rolling", feed.baselines)
 		}
 	})
+}
+
+// TestOnceFramesOneAtATime: keys that ask for a frame outside the loop (the
+// arrows over the Pairs cells) ask for one at a time. Keys pressed while
+// one is on its way ask for nothing more until it comes; then one more
+// frame is asked for, for the cell the cursor is on by then.
+func TestOnceFramesOneAtATime(t *testing.T) {
+	m, feed := fixtureModel(t, 120, 40)
+	m = press(t, m, "2")
+	update := func(msg tea.Msg) tea.Cmd {
+		next, cmd := m.Update(msg)
+		m = next.(Model)
+		return cmd
+	}
+	first := update(tea.KeyMsg{Type: tea.KeyDown})
+	if first == nil {
+		t.Fatal("a move over the cells asks for no frame")
+	}
+	for range 5 {
+		if cmd := update(tea.KeyMsg{Type: tea.KeyDown}); cmd != nil {
+			t.Fatal("a move asks for a frame while one is on its way")
+		}
+	}
+	want := m.pairs.selR
+	again := update(first())
+	if again == nil {
+		t.Fatal("no frame asked for the moves made while one was on its way")
+	}
+	msg, ok := again().(frameMsg)
+	if !ok || !msg.once {
+		t.Fatalf("asked again: %T, want a frame outside the loop", msg)
+	}
+	if feed.asked[0].Detail == want {
+		t.Fatalf("the moves stayed on the row of %q", want)
+	}
+	if got := feed.asked[len(feed.asked)-1].Detail; got != want {
+		t.Errorf("asked again for the breakdown of %q, want the cell now under the cursor (%q)", got, want)
+	}
+	if cmd := update(msg); cmd != nil {
+		t.Error("a frame answered with no move since asks for another")
+	}
+	if len(feed.asked) != 2 {
+		t.Errorf("%d frames asked for, want 2", len(feed.asked))
+	}
 }

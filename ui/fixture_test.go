@@ -89,6 +89,7 @@ type staticFeed struct {
 	baselines []ingest.BaselineChoice
 	sample    *plan.Sample // nil: Sample fails
 	pacer     ingest.Pacer
+	asked     []model.SnapshotOptions // every frame request
 }
 
 func (s *staticFeed) SetBaseline(b ingest.BaselineChoice) {
@@ -118,6 +119,7 @@ func fixtureNow() time.Time {
 func (s *staticFeed) Frame(ctx context.Context, opt model.SnapshotOptions) (*ingest.Frame, error) {
 	s.mu.Lock()
 	defer s.mu.Unlock()
+	s.asked = append(s.asked, opt)
 	return s.frame, nil
 }
 

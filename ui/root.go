@@ -57,6 +57,9 @@ type Model struct {
 	pendingWindow *model.Window
 	// deepAt is when the last deep snapshot was asked for.
 	deepAt time.Time
+	// onceBusy: a frame asked for outside the loop is on its way;
+	// onceAgain: another was asked for meanwhile (see fetchOnce).
+	onceBusy, onceAgain bool
 	// flash is a short answer to the last key ("baseline pinned"), shown
 	// on the status line until the next key or for flashFor.
 	flash   string
@@ -129,6 +132,23 @@ func (m Model) fetchDeep(once bool) (Model, tea.Cmd) {
 	return m, m.fetchOpt(once, opt)
 }
 
+// fetchOnce asks for a frame outside the loop, after a key that changes
+// what a frame holds (a Pairs cell, a Focus field, the window, the
+// baseline, a replay step), deep when one is due (fetchDeep). At most one
+// is on its way: each snapshot holds up ingest for tens of ms, and a key
+// held down (the arrows over the Pairs cells) would otherwise queue one
+// per repeat on the owner goroutine, starving ingest and showing each
+// answer later than the last. Asked for meanwhile, it is asked for once
+// more when the answer comes, with what the screen then wants.
+func (m Model) fetchOnce() (Model, tea.Cmd) {
+	if m.onceBusy {
+		m.onceAgain = true
+		return m, nil
+	}
+	m.onceBusy = true
+	return m.fetchDeep(true)
+}
+
 func (m Model) fetchOpt(once bool, opt model.SnapshotOptions) tea.Cmd {
 	gen, feed, ctx := m.gen, m.feed, m.opt.Context
 	return func() tea.Msg {
@@ -186,7 +206,7 @@ func (m Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 	case openMsg:
 		m.focus = m.focus.show(msg.field, msg.given)
 		m.back, m.screen = m.screen, screenFocus
-		return m, m.fetch(true)
+		return m.fetchOnce()
 	case tea.KeyMsg:
 		if msg.Type == tea.KeyRunes && len(msg.Runes) > 1 && !msg.Paste && !m.fields.capturing() && !m.narrow.on {
 			// Keys typed faster than the screen reads them arrive
@@ -212,9 +232,25 @@ func (m Model) eachRune(rs []rune) (tea.Model, tea.Cmd) {
 }
 
 func (m Model) onFrame(msg frameMsg) (tea.Model, tea.Cmd) {
+	if !msg.once {
+		return m.takeFrame(msg)
+	}
+	m.onceBusy = false
+	m, cmd := m.takeFrame(msg)
+	if m.onceAgain && msg.err != ingest.ErrStopped && m.opt.Context.Err() == nil {
+		m.onceAgain = false
+		var again tea.Cmd
+		m, again = m.fetchOnce()
+		cmd = tea.Batch(cmd, again)
+	}
+	return m, cmd
+}
+
+// takeFrame puts a frame on show, and schedules the loop's next one.
+func (m Model) takeFrame(msg frameMsg) (Model, tea.Cmd) {
 	if msg.err != nil {
-		if msg.err == ingest.ErrStopped || m.opt.Context.Err() != nil {
-			return m, nil
+		if msg.once || msg.err == ingest.ErrStopped || m.opt.Context.Err() != nil {
+			return m, nil // a frame outside the loop must not start another loop
 		}
 		return m, m.tick() // a passing fault: try again on the next tick
 	}
@@ -356,12 +392,12 @@ func (m Model) onKey(msg tea.KeyMsg) (tea.Model, tea.Cmd) {
 		m.e.pinnedAt = m.e.now()
 		m.say("baseline: this window, pinned at " + m.e.pinnedAt.Format("15:04:05") + " (B: rolling)")
 		m.deepAt = time.Time{}
-		return m.fetchDeep(true)
+		return m.fetchOnce()
 	case key.Matches(msg, k.Rolling):
 		m.feed.SetBaseline(ingest.Rolling)
 		m.say("baseline: rolling, the window as it was one to two window lengths ago")
 		m.deepAt = time.Time{}
-		return m.fetchDeep(true)
+		return m.fetchOnce()
 	case key.Matches(msg, k.Window):
 		return m.nextWindow()
 	case key.Matches(msg, k.Narrow):
@@ -389,7 +425,7 @@ func (m Model) arrive(before screen) (tea.Model, tea.Cmd) {
 	switch m.screen {
 	case screenDrift:
 		if m.e.now().Sub(m.deepAt) >= m.opt.DeepEvery {
-			return m.fetchDeep(true)
+			return m.fetchOnce()
 		}
 	case screenPlan:
 		return m, m.maybeMeasure()
@@ -416,13 +452,13 @@ func (m Model) toScreen(msg tea.Msg) (tea.Model, tea.Cmd) {
 		r, c := m.pairs.selR, m.pairs.selC
 		m.pairs, cmd = m.pairs.Update(msg)
 		if cmd == nil && (m.pairs.selR != r || m.pairs.selC != c) {
-			cmd = m.fetch(true) // the breakdown of the new cell
+			m, cmd = m.fetchOnce() // the breakdown of the new cell
 		}
 	case screenFocus:
 		before := m.focus.field
 		m.focus, cmd = m.focus.Update(msg)
 		if m.focus.field != before {
-			cmd = m.fetch(true) // the detail of the new field
+			m, cmd = m.fetchOnce() // the detail of the new field
 		}
 	case screenDrift:
 		m.drift, cmd = m.drift.Update(msg)
