@@ -3,6 +3,7 @@ package model
 import (
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"slices"
 	"strconv"
 	"testing"
@@ -120,5 +121,39 @@ func TestWordKeyTellsShortValues(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestHeadlessTimelineSeesIdentifierGaps: the timeline finds where a
+// field goes missing from the store's columns; a flat identifier's are
+// empty, its presence in its list. A unique id missing from records
+// 5,000 to 7,999 must be reported gone there, as the table model does.
+func TestHeadlessTimelineSeesIdentifierGaps(t *testing.T) {
+	all := Window{Kind: WindowAll}
+	flat, table := New(Options{Window: all, Headless: true}), New(Options{Window: all})
+	var rec parse.Record
+	for i := range 12_000 {
+		rec.Reset()
+		if i < 5000 || i >= 8000 {
+			rec.AddString("trace", "t"+strconv.Itoa(i))
+		}
+		rec.AddString("dock", []string{"east", "west"}[i%2])
+		flat.Add(&rec, int64(i+1), int64(i))
+		table.Add(&rec, int64(i+1), int64(i))
+	}
+	if flat.fields[0].flat == nil {
+		t.Fatal("the identifier was not listed")
+	}
+	sf, st := flat.Snapshot(SnapshotOptions{}), table.Snapshot(SnapshotOptions{})
+	got, want := flat.Timeline(sf, []string{"a.log"}), table.Timeline(st, []string{"a.log"})
+	if !reflect.DeepEqual(got, want) {
+		t.Fatalf("timeline:\n got %+v\nwant %+v", got, want)
+	}
+	gone := false
+	for _, e := range want {
+		gone = gone || e.Kind == TimelineGone && e.Field == "trace"
+	}
+	if !gone {
+		t.Fatalf("the table model reports no gap for trace: %+v", want)
 	}
 }

@@ -55,21 +55,25 @@ func (m *Model) fillEMI(s *Snapshot) {
 	}
 	s.emiApprox = make([]bool, k*k)
 	hists := make([]*countHist, k)
-	hist := func(i int) countHist {
-		if hists[i] == nil {
-			h := histOf(m.fieldCounts(m.fields[i]))
-			hists[i] = &h
-		}
-		return *hists[i]
-	}
 	for _, p := range m.pairs {
+		for _, i := range []int{p.a, p.b} {
+			if hists[i] == nil {
+				h := histOf(m.fieldCounts(m.fields[i]))
+				hists[i] = &h
+			}
+		}
+	}
+	// The pairs side by side: each is a pure function of two histograms,
+	// and writes its own cells.
+	spread(parallelMin*len(m.pairs), len(m.pairs), func(i int) {
 		if m.cancelled() {
 			return
 		}
-		v, approx := expectedMI(hist(p.a), hist(p.b))
+		p := m.pairs[i]
+		v, approx := expectedMI(*hists[p.a], *hists[p.b])
 		s.emi[p.a][p.b], s.emi[p.b][p.a] = v, v
 		s.emiApprox[p.a*k+p.b], s.emiApprox[p.b*k+p.a] = approx, approx
-	}
+	})
 }
 
 // fieldCounts is the count vector of f over the window, absent included

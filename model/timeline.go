@@ -253,6 +253,12 @@ func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
 func (sc *timelineScan) scan(sources []string) {
 	m := sc.m
 	sc.tracer = m.Tracer(sources)
+	// A flat identifier's ids are not in the store: whether a record has
+	// it is in its list (a zero hash is absent).
+	flat := make([]*flatIDs, len(m.fields))
+	for i, f := range m.fields {
+		flat[i] = f.flat
+	}
 	for r := 0; r < sc.n; r++ {
 		row := m.st.row(r)
 		k := r / sc.size
@@ -278,7 +284,11 @@ func (sc *timelineScan) scan(sources []string) {
 		}
 		for i := range sc.gaps {
 			if idAt(row, i) == absent {
-				continue
+				if fl := flat[i]; fl == nil {
+					continue
+				} else if h, _ := fl.at(r); h == 0 {
+					continue
+				}
 			}
 			sc.gaps[i].note(r)
 		}
