@@ -14,11 +14,13 @@ import (
 // does the work in passes that run over all the records of a segment:
 //
 //  1. keys → fields, record by record (new fields start here, and their
-//     pair tables are filled from the records already counted);
-//  2. values → ids, field by field, the fields spread over the cores (each
+//     pair tables are filled from the records already counted), each
+//     value into its field's list;
+//  2. the records' rows are made in the store (times, line numbers);
+//  3. values → ids, field by field, the fields spread over the cores (each
 //     field's table is its own, and its values go in input order, so the
-//     overflow and hashing decisions are those of Add);
-//  3. the records enter the store;
+//     overflow and hashing decisions are those of Add), each field then
+//     writing its column of the new rows;
 //  4. pair-major counting: each pair table is updated in one tight loop
 //     over two columns, the pairs spread over the cores, with no Σ c·log c
 //     kept per increment (cellMap.sum computes it when a snapshot asks);
@@ -40,19 +42,16 @@ const parallelMin = 4096
 
 // batchState is AddBatch's scratch, kept between calls.
 type batchState struct {
-	ents   []entry  // the segment's values, record by record
-	byF    []entry  // the same, field by field (counting sort)
-	starts []int    // byF[starts[f]:starts[f+1]] are field f's
-	rows   []uint32 // rows[r*w+f]: record r's id of field f
-	cols   []uint32 // cols[f*k+r]: the same, column-major
-	w      int
-	evict  []uint32 // ids of evicted rows, column-major
-	after  []int    // see evictions
+	byF   [][]entry // byF[f]: field f's values in the segment, in input order
+	cols  []uint32  // cols[f*k+r]: record r's id of field f
+	evict []uint32  // ids of evicted rows, column-major
+	after []int     // see evictions
 }
 
+// entry is a field's value in record r of a segment.
 type entry struct {
-	f, r int32
-	v    []byte
+	r int32
+	v []byte
 }
 
 // AddBatch takes recs[i] (line lines[i], time times[i]) into the window in
@@ -91,8 +90,13 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	b := &m.batch
 	k := len(recs)
 	m.capFlat(k)
-	// 1. Keys to fields.
-	b.ents = b.ents[:0]
+	// 1. Keys to fields, each value straight into its field's list (a
+	// field has at most one value a record, so the lists hold each
+	// field's values in input order).
+	for f := range b.byF {
+		b.byF[f] = b.byF[f][:0]
+	}
+	values := 0
 	for r, rec := range recs {
 		m.gen++
 		if m.gen == 0 {
@@ -105,38 +109,30 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 				continue // past the field cap, or a repeated key: the first one counts
 			}
 			m.mark[idx] = m.gen
-			b.ents = append(b.ents, entry{int32(idx), int32(r), rec.Value(i)})
+			for len(b.byF) <= idx {
+				b.byF = append(b.byF, nil)
+			}
+			b.byF[idx] = append(b.byF[idx], entry{int32(r), rec.Value(i)})
+			values++
 		}
 	}
 	w := len(m.fields)
-	b.w = w
-	// Counting sort by field, stable: each field's values in input order.
-	b.starts = append(b.starts[:0], make([]int, w+1)...)
-	for _, e := range b.ents {
-		b.starts[e.f+1]++
-	}
-	for f := 0; f < w; f++ {
-		b.starts[f+1] += b.starts[f]
-	}
-	if cap(b.byF) < len(b.ents) {
-		b.byF = make([]entry, len(b.ents))
-	}
-	b.byF = b.byF[:len(b.ents)]
-	next := append([]int(nil), b.starts[:w]...)
-	for _, e := range b.ents {
-		b.byF[next[e.f]] = e
-		next[e.f]++
-	}
 	// 2. Which records the window evicts after each record, as Add would.
 	nOld := m.st.n
 	e := m.evictions(times)
-	// 3. Values to ids, field by field, each field's evictions interleaved
-	// where Add does them, so that its ids and free list come out as Add's.
-	if cap(b.rows) < k*w {
-		b.rows = make([]uint32, k*w)
+	// The segment's rows are made in the store (times and line numbers);
+	// each field writes its own column of them below.
+	m.st.reserve(w, lines, times)
+	for _, t := range times {
+		m.maxTime = max(m.maxTime, t)
 	}
-	b.rows = b.rows[:k*w]
-	clear(b.rows)
+	// 3. Values to ids, field by field, each field's evictions interleaved
+	// where Add does them, so that its ids and free list come out as Add's;
+	// then the field's ids into the store.
+	if cap(b.cols) < k*w {
+		b.cols = make([]uint32, k*w)
+	}
+	cols := b.cols[:k*w] // cols[f*k+r]: record r's id of field f
 	if cap(b.evict) < e*w {
 		b.evict = make([]uint32, e*w)
 	}
@@ -146,46 +142,36 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		m.st.column(f, 0, old, ev[f*e:f*e+old])
 	}
 	maxD := m.opt.MaxDistinct
-	spread(len(b.ents)+e, w, func(f int) {
+	spread(values+e, w, func(f int) {
 		fl := m.fields[f]
 		col := ev[f*e : (f+1)*e]
-		ents := b.byF[b.starts[f]:b.starts[f+1]]
+		ids := cols[f*k : (f+1)*k]
+		clear(ids)
+		var ents []entry
+		if f < len(b.byF) {
+			ents = b.byF[f]
+		}
 		gone := 0
 		for r := 0; r < k; r++ {
 			if len(ents) > 0 && int(ents[0].r) == r {
-				b.rows[r*w+f] = fl.addAt(ents[0].v, maxD, nOld+r)
+				ids[r] = fl.addAt(ents[0].v, maxD, nOld+r)
 				ents = ents[1:]
 			}
 			for ; gone < b.after[r]; gone++ {
 				if gone >= old {
-					col[gone] = b.rows[(gone-nOld)*w+f]
+					col[gone] = ids[gone-nOld]
 				}
 				if id := col[gone]; id != absent {
 					fl.remove(id)
 				}
 			}
 		}
+		m.st.putColumn(f, nOld, ids)
 	})
-	// 4. The records enter the store.
-	for r := 0; r < k; r++ {
-		m.st.push(b.rows[r*w:(r+1)*w], rowMeta{line: lines[r], time: times[r]})
-		if times[r] > m.maxTime {
-			m.maxTime = times[r]
-		}
-	}
+	m.st.commit(k)
 	m.seen += int64(k)
-	// 5. Pairs, pair-major: the segment's records in, the evicted out,
-	// from the ids turned column-major, so that each pair's loop reads two
-	// short arrays in order.
-	if cap(b.cols) < k*w {
-		b.cols = make([]uint32, k*w)
-	}
-	cols := b.cols[:k*w]
-	for r := 0; r < k; r++ {
-		for f, id := range b.rows[r*w : (r+1)*w] {
-			cols[f*k+r] = id
-		}
-	}
+	// 4. Pairs, pair-major: the segment's records in, the evicted out, each
+	// pair's loop reading two short columns in order.
 	spread((k+e)*len(m.pairs), len(m.pairs), func(i int) {
 		p := &m.pairs[i]
 		if p.virt {
@@ -257,7 +243,7 @@ func (m *Model) evictions(times []int64) int {
 // their keys in the same order: the field the i-th key was last time is
 // tried before hashing.
 func (m *Model) fieldOf(key []byte, i int) int {
-	if i < len(m.hint) && m.hint[i] < len(m.fields) && m.fields[m.hint[i]].name == string(key) {
+	if i < len(m.hint) && m.hint[i] < len(m.fields) && m.fields[m.hint[i]].isNamed(key) {
 		return m.hint[i]
 	}
 	idx, ok := m.byName[string(key)]

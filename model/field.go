@@ -26,6 +26,7 @@ const overflow = ^uint32(0)
 // are on free and not in values.
 type field struct {
 	name    string
+	nameKey wordKey // name's words, when 16 bytes or shorter (isNamed)
 	index   int
 	values  *hashTable // ids by text (textHash, probeText); nil once hashed
 	words   []wordKey  // words[id]: text[id]'s, when 16 bytes or shorter
@@ -71,13 +72,18 @@ type field struct {
 }
 
 func newField(name string, index int) *field {
+	var nk wordKey
+	if len(name) <= 16 {
+		nk = keyWords([]byte(name))
+	}
 	return &field{
-		name:   name,
-		index:  index,
-		values: newHashTable(0),
-		text:   []string{""},
-		words:  []wordKey{{}},
-		counts: []int32{0},
+		name:    name,
+		nameKey: nk,
+		index:   index,
+		values:  newHashTable(0),
+		text:    []string{""},
+		words:   []wordKey{{}},
+		counts:  []int32{0},
 	}
 }
 
@@ -238,6 +244,18 @@ func (f *field) sum() int64 {
 		s += clogc(int64(f.counts[id]))
 	}
 	return s
+}
+
+// isNamed says whether key is f's name: two word compares for a name of 16
+// bytes or less (the records of a stream repeat their keys: see fieldOf).
+func (f *field) isNamed(key []byte) bool {
+	if len(key) != len(f.name) {
+		return false
+	}
+	if len(key) <= 16 {
+		return keyWords(key) == f.nameKey
+	}
+	return f.name == string(key)
 }
 
 // hashBytes is the keyed hash of an identifier's value.

@@ -240,6 +240,49 @@ func (s *store) bytes() int {
 	return n
 }
 
+// reserve makes rows for the next len(lines) records after the window's
+// last (their line numbers and times set, every id absent), with columns
+// for w fields in the blocks they fall in, so that putColumn can write
+// several fields' columns side by side; commit then takes them into the
+// window.
+func (s *store) reserve(w int, lines, times []int64) {
+	if w > s.width {
+		s.width = w
+		s.out = make([]uint32, w)
+	}
+	for r := range lines {
+		g := s.head + s.n + r
+		if g == len(s.blocks)*blockRows {
+			s.blocks = append(s.blocks, s.newBlock())
+		}
+		b, i := s.blocks[g/blockRows], g%blockRows
+		if i == 0 {
+			b.line0, b.time0 = lines[r], times[r]
+		}
+		b.setMeta(i, rowMeta{line: lines[r], time: times[r]})
+		if i == 0 || r == 0 {
+			for len(b.width) < w {
+				b.width = append(b.width, 0)
+				b.cols = append(b.cols, nil)
+			}
+		}
+	}
+}
+
+// putColumn writes ids as field j's ids of the records from window index
+// lo on, in rows reserve made (each field's goroutine its own column).
+func (s *store) putColumn(j, lo int, ids []uint32) {
+	for r, id := range ids {
+		if id != absent {
+			b, i := s.at(lo + r)
+			b.put(j, i, id)
+		}
+	}
+}
+
+// commit takes the k rows reserve made into the window.
+func (s *store) commit(k int) { s.n += k }
+
 // put writes id as record r's id of field j, widening the column as
 // needed; the slot must still hold absent (each row is written once).
 func (b *block) put(j, r int, id uint32) {

@@ -196,20 +196,27 @@ type wordKey struct{ a, b uint64 }
 // multiply (after wyhash's construction), longer ones with maphash.
 func textHash(v []byte) (uint64, wordKey) {
 	n := len(v)
-	var a, b uint64
-	switch {
-	case n > 16:
+	if n > 16 {
 		return maphash.Bytes(hashSeed, v), wordKey{}
-	case n >= 8:
-		a, b = binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])
-	case n >= 4:
-		a, b = uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))
-	case n > 0:
-		a = uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1])
 	}
-	hi, lo := bits.Mul64(a^textSeed^uint64(n)<<56, b^0x9E3779B97F4A7C15)
+	k := keyWords(v)
+	hi, lo := bits.Mul64(k.a^textSeed^uint64(n)<<56, k.b^0x9E3779B97F4A7C15)
 	hi, lo = bits.Mul64(hi^lo, textSeed^0xD6E8FEB86659FD93)
-	return hi ^ lo, wordKey{a, b}
+	return hi ^ lo, k
+}
+
+// keyWords is the wordKey of a value of up to 16 bytes.
+func keyWords(v []byte) wordKey {
+	n := len(v)
+	switch {
+	case n >= 8:
+		return wordKey{binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])}
+	case n >= 4:
+		return wordKey{uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))}
+	case n > 0:
+		return wordKey{a: uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1])}
+	}
+	return wordKey{}
 }
 
 // probeText returns the id whose text is v (h, k = textHash(v)), or 0;
