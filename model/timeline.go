@@ -253,12 +253,13 @@ func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
 func (sc *timelineScan) scan(sources []string) {
 	m := sc.m
 	sc.tracer = m.Tracer(sources)
-	// A flat identifier's ids are not in the store: whether a record has
-	// it is in its list (a zero hash is absent).
-	flat := make([]*flatIDs, len(m.fields))
-	for i, f := range m.fields {
-		flat[i] = f.flat
-	}
+	// Where each field is missing is found from its column on another
+	// goroutine, beside the rules and distributions (row by row here).
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		sc.scanGaps()
+	}()
 	for r := 0; r < sc.n; r++ {
 		row := m.st.row(r)
 		k := r / sc.size
@@ -282,27 +283,36 @@ func (sc *timelineScan) scan(sources []string) {
 				d.counts[k][d.bucket[id]]++
 			}
 		}
-		for i := range sc.gaps {
-			if idAt(row, i) == absent {
-				if fl := flat[i]; fl == nil {
-					continue
-				} else if h, _ := fl.at(r); h == 0 {
-					continue
-				}
-			}
-			sc.gaps[i].note(r)
-		}
 	}
-	for i := range sc.gaps {
-		g := &sc.gaps[i]
-		if g.last >= 0 && g.last < sc.n-1 {
-			g.keep(segment{g.last + 1, sc.n})
-		}
-	}
+	<-done
 	sc.fileRank = map[string]int{}
 	for i, f := range sources {
 		if _, ok := sc.fileRank[f]; !ok {
 			sc.fileRank[f] = i
+		}
+	}
+}
+
+// scanGaps notes where each field is present, column by column. A flat
+// identifier's ids are not in the store: whether a record has it is in its
+// list (a zero hash is absent).
+func (sc *timelineScan) scanGaps() {
+	var col []uint32
+	for i, f := range sc.m.fields {
+		g := &sc.gaps[i]
+		col = sc.m.st.column(i, 0, sc.n, col)
+		for r, id := range col {
+			if id == absent {
+				if f.flat == nil {
+					continue
+				} else if h, _ := f.flat.at(r); h == 0 {
+					continue
+				}
+			}
+			g.note(r)
+		}
+		if g.last >= 0 && g.last < sc.n-1 {
+			g.keep(segment{g.last + 1, sc.n})
 		}
 	}
 }
