@@ -40,6 +40,7 @@
 //   - batch.go, cellbatch.go: AddBatch, the same as Add on each record,
 //     done in passes (fields and pairs spread over the cores, Σ c·log c
 //     computed when a snapshot asks).
+//   - constpairs.go: pairs with a constant field, made when read.
 //   - field.go, valuetable.go, values.go: a field's value table (text found
 //     by a hash table of its own, or 64-bit hashes for an identifier), its
 //     counts, display text.
