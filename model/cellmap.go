@@ -45,8 +45,10 @@ type cellMap struct {
 // though filled later it would be cheaper as a matrix. The spare lets a few
 // such pairs stay matrices while bounding what sparse ones can cost when
 // every field has hundreds of values; a matrix borrows only up to
-// denseBorrowCells (1 MB), so that a pair of two large fields is not built
-// as a matrix to be dropped for a hash map later.
+// denseBorrowCells (1 MB) and only with a 32nd of it in use, so that a pair
+// of two large or unique fields (as all fields are tracked over the first
+// records, before the identifier rule first runs) is not built as a matrix
+// to be dropped for a hash map later: that cost every run about 30 ms.
 const (
 	denseSpare       = 16 << 20
 	denseBorrowCells = 1 << 18
@@ -82,7 +84,7 @@ func (m *cellMap) denseAt(k uint64) int {
 	for a >= nh {
 		nh *= 2
 	}
-	if c := nw * nh; c > denseMaxCells || c > denseFillCells && uint64(m.len)*4 < c && (c > denseBorrowCells || !m.borrow(int64(c-m.dw*m.dh)*4)) {
+	if c := nw * nh; c > denseMaxCells || c > denseFillCells && uint64(m.len)*4 < c && (c > denseBorrowCells || uint64(m.len)*32 < c || !m.borrow(int64(c-m.dw*m.dh)*4)) {
 		m.toHash()
 		return -1
 	}
