@@ -6,8 +6,10 @@ import (
 	"math/bits"
 )
 
-// hashTable maps the 64-bit keyed hashes of an identifier field's values to
-// their ids. It is an open-addressing table with linear probing and
+// hashTable maps the 64-bit keyed hashes of a field's values to their ids:
+// an identifier's (probe compares the full hashes) or, in a text table,
+// any field's that keeps its text (probeText compares the text). It is an
+// open-addressing table with linear probing and
 // backward-shift deletion, so a value leaving the window takes its entry out
 // at once: no stale entries, no sweeps, and an id freed and reused by
 // another value can never be found under the old value's hash.
