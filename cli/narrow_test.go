@@ -58,6 +58,9 @@ func TestNarrowAgreesWithJQ(t *testing.T) {
 		{[]string{"--where", "route~^/v1/tickets"}, `.route | test("^/v1/tickets")`},
 		{[]string{"--where", "route!~berths", "--where", "status=200"}, `(.route | test("berths") | not) and .status == 200`},
 		{[]string{"--where", "refund_reason~."}, `.refund_reason != null`},
+		// A field bitsift makes: latency_ms~log's bucket [18,32) holds
+		// 18 <= latency_ms < 32 (companion/buckets.go: edges 10, 18, 32, 56).
+		{[]string{"--where", "latency_ms~log=[18,32)"}, `.latency_ms >= 18 and .latency_ms < 32`},
 		{[]string{"--since", "2026-03-14T06:00:03Z", "--until", "2026-03-14 06:00:07.5"}, `.ts >= "2026-03-14T06:00:03" and .ts < "2026-03-14T06:00:07.5"`},
 		{[]string{"--where", "level=error", "--since", "2026-03-14T06:00:05Z"}, `.level == "error" and .ts >= "2026-03-14T06:00:05"`},
 	} {

@@ -3,8 +3,11 @@ package companion
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"testing"
+
+	"bitsift/model"
 )
 
 func TestBucketLabels(t *testing.T) {
@@ -161,4 +164,14 @@ func groupTexts(t *Templates) []string {
 		out = append(out, s)
 	}
 	return out
+}
+
+// TestModelKnowsCompanionSuffixes: model.ParseCond reads a ~ followed by
+// one of model.CompanionSuffixes as part of a field's name; they must be
+// the names this package makes.
+func TestModelKnowsCompanionSuffixes(t *testing.T) {
+	want := []string{BucketSuffix, TemplateSuffix}
+	if !slices.Equal(model.CompanionSuffixes, want) {
+		t.Fatalf("model.CompanionSuffixes = %q, companions are named with %q", model.CompanionSuffixes, want)
+	}
 }

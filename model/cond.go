@@ -6,6 +6,11 @@ import (
 	"strings"
 )
 
+// CompanionSuffixes end the names of the fields bitsift makes
+// (companion.BucketSuffix and TemplateSuffix, which a test keeps equal):
+// ParseCond reads FIELD~log=VALUE as a condition on the companion.
+var CompanionSuffixes = []string{"~log", "~template"}
+
 // ParseCond reads one --where condition: FIELD=VALUE (equals), FIELD!=VALUE
 // (does not equal; a record lacking the field does not equal it),
 // FIELD~REGEXP (matches the Go regular expression, RE2 syntax) or
@@ -13,9 +18,23 @@ import (
 func ParseCond(s string) (Cond, error) {
 	ops := []string{"!=", "!~", "=", "~"}
 	best, at := "", -1
+	// The name of a field bitsift makes holds a ~ (latency_ms~log,
+	// msg~template): the operator is looked for after it.
+	from := 0
+	for _, suf := range CompanionSuffixes {
+		if i := strings.Index(s, suf); i > 0 && !strings.ContainsAny(s[:i], "=!~") {
+			if rest := s[i+len(suf):]; strings.HasPrefix(rest, "=") || strings.HasPrefix(rest, "!") || strings.HasPrefix(rest, "~") {
+				from = i + len(suf)
+				break
+			}
+		}
+	}
 	for _, op := range ops {
-		if i := strings.Index(s, op); i > 0 && (at < 0 || i < at || i == at && len(op) > len(best)) {
-			best, at = op, i
+		if i := strings.Index(s[from:], op); i+from > 0 && i >= 0 {
+			i += from
+			if at < 0 || i < at || i == at && len(op) > len(best) {
+				best, at = op, i
+			}
 		}
 	}
 	if at < 0 {
