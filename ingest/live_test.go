@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"reflect"
 	"strings"
 	"testing"
@@ -293,27 +292,7 @@ func TestLiveEqualsSequential(t *testing.T) {
 			if g, w := in.Warnings(), ref.Warnings(); !reflect.DeepEqual(g, w) {
 				t.Errorf("warnings %q, want %q", g, w)
 			}
-			s := got.Snap
-			if !reflect.DeepEqual(s.Input, want.Input) {
-				t.Errorf("input accounting differs:\n got %+v\nwant %+v", s.Input, want.Input)
-			}
-			if !reflect.DeepEqual(s.Fields, want.Fields) || s.Records != want.Records || s.Seen != want.Seen ||
-				s.Oldest != want.Oldest || s.Newest != want.Newest {
-				for i := range want.Fields {
-					if i < len(s.Fields) && !reflect.DeepEqual(s.Fields[i], want.Fields[i]) {
-						t.Errorf("field %d:\n got %+v\nwant %+v", i, s.Fields[i], want.Fields[i])
-					}
-				}
-				t.Errorf("figures differ: %d/%d records, %d/%d fields", s.Records, want.Records, len(s.Fields), len(want.Fields))
-			}
-			for i := range want.Fields {
-				for j := range want.Fields {
-					x, y := s.Joint(i, j), want.Joint(i, j)
-					if x != y && !(math.IsNaN(x) && math.IsNaN(y)) {
-						t.Errorf("H(%s,%s) = %v, want %v", want.Fields[i].Name, want.Fields[j].Name, x, y)
-					}
-				}
-			}
+			sameFigures(t, got.Snap, want)
 		})
 	}
 }

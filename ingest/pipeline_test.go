@@ -79,28 +79,10 @@ func TestPipelineEqualsSequential(t *testing.T) {
 			}
 			got, want := run(true), run(false)
 			got.Taken, want.Taken = time.Time{}, time.Time{}
-			if !reflect.DeepEqual(got.Input, want.Input) {
-				t.Errorf("input accounting differs:\n got %+v\nwant %+v", got.Input, want.Input)
-			}
 			if want.Input.Rejected < 20 || want.Input.Lines != 6000+want.Input.Rejected+1 {
 				t.Errorf("reference read %d lines, %d rejected: the test input is not what it should be", want.Input.Lines, want.Input.Rejected)
 			}
-			if !reflect.DeepEqual(got.Fields, want.Fields) || got.Records != want.Records || got.Oldest != want.Oldest || got.Newest != want.Newest {
-				for i := range want.Fields {
-					if i < len(got.Fields) && !reflect.DeepEqual(got.Fields[i], want.Fields[i]) {
-						t.Errorf("field %d:\n got %+v\nwant %+v", i, got.Fields[i], want.Fields[i])
-					}
-				}
-				t.Errorf("figures differ: %d/%d records, %d/%d fields", got.Records, want.Records, len(got.Fields), len(want.Fields))
-			}
-			for i := range want.Fields {
-				for j := range want.Fields {
-					x, y := got.Joint(i, j), want.Joint(i, j)
-					if x != y && !(math.IsNaN(x) && math.IsNaN(y)) {
-						t.Errorf("H(%s,%s) = %v, want %v", want.Fields[i].Name, want.Fields[j].Name, x, y)
-					}
-				}
-			}
+			sameFigures(t, got, want)
 		})
 	}
 }
@@ -167,17 +149,7 @@ func TestPipelineEqualsSequentialCompanions(t *testing.T) {
 			if where != nil && (want.Input.Filtered == 0 || want.Records == 0) {
 				t.Errorf("--where %v kept %d, left out %d: the test input is not what it should be", where, want.Records, want.Input.Filtered)
 			}
-			if !reflect.DeepEqual(got.Input, want.Input) {
-				t.Errorf("input accounting differs:\n got %+v\nwant %+v", got.Input, want.Input)
-			}
-			if !reflect.DeepEqual(got.Fields, want.Fields) || got.Records != want.Records {
-				for i := range want.Fields {
-					if i < len(got.Fields) && !reflect.DeepEqual(got.Fields[i], want.Fields[i]) {
-						t.Errorf("field %d:\n got %+v\nwant %+v", i, got.Fields[i], want.Fields[i])
-					}
-				}
-				t.Errorf("figures differ: %d/%d records, %d/%d fields", got.Records, want.Records, len(got.Fields), len(want.Fields))
-			}
+			sameFigures(t, got, want)
 			for id := 1; ; id++ {
 				a, okA := gotIn.TemplateText("msg~template", companion.FormatID(id))
 				b, okB := wantIn.TemplateText("msg~template", companion.FormatID(id))
@@ -189,5 +161,32 @@ func TestPipelineEqualsSequentialCompanions(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// sameFigures fails t where got, a snapshot of one way of reading, differs
+// from want, the line-by-line read's: the input accounting, every field's
+// figures, the records and their times, every pair's joint entropy.
+func sameFigures(t *testing.T, got, want *model.Snapshot) {
+	t.Helper()
+	if !reflect.DeepEqual(got.Input, want.Input) {
+		t.Errorf("input accounting differs:\n got %+v\nwant %+v", got.Input, want.Input)
+	}
+	if !reflect.DeepEqual(got.Fields, want.Fields) || got.Records != want.Records || got.Seen != want.Seen ||
+		got.Oldest != want.Oldest || got.Newest != want.Newest {
+		for i := range want.Fields {
+			if i < len(got.Fields) && !reflect.DeepEqual(got.Fields[i], want.Fields[i]) {
+				t.Errorf("field %d:\n got %+v\nwant %+v", i, got.Fields[i], want.Fields[i])
+			}
+		}
+		t.Errorf("figures differ: %d/%d records, %d/%d fields", got.Records, want.Records, len(got.Fields), len(want.Fields))
+	}
+	for i := range want.Fields {
+		for j := range want.Fields {
+			x, y := got.Joint(i, j), want.Joint(i, j)
+			if x != y && !(math.IsNaN(x) && math.IsNaN(y)) {
+				t.Errorf("H(%s,%s) = %v, want %v", want.Fields[i].Name, want.Fields[j].Name, x, y)
+			}
+		}
 	}
 }
