@@ -29,9 +29,9 @@ import (
 // A segment ends where Add would do more than count: at a reclassification
 // (every reclassEvery records), an entropy-history note, and a rolling
 // baseline's roll (after the record that ends its period: a window's
-// length of records, or of time). Evicting at the end of a segment rather than after each
-// record evicts the same records: a records window keeps the newest N, and
-// a duration window's newest time only grows.
+// length of records, or of time). Evicting at the end of a segment rather
+// than after each record evicts the same records: a records window keeps
+// the newest N, and a duration window's newest time only grows.
 
 // segmentMax is the most records of one segment.
 const segmentMax = 2048

@@ -13,8 +13,8 @@ const fixScale = 1 << 30
 // the rest of a table update). The table is filled a chunk at a time as
 // counts reach it, so memory follows the largest count stepped (8 bytes per
 // count). Chunks are published atomically, so models in different
-// goroutines can share them. A field's values step past the first chunk
-// through field.up, which memoises instead, and sums taken once (clogc)
+// goroutines can share them. A field's values leave its running sum at
+// the first chunk's end (field.up, field.big), and sums taken once (clogc)
 // compute past it: a report over a million records of one value then
 // holds the first chunk only.
 const (

@@ -22,8 +22,9 @@ const overflow = ^uint32(0)
 // Invariants: counts[id] is the number of window records whose value id for
 // this field is id (id ≥ 1); counts[0] is unused (absent records are
 // n − present); present == Σ counts[id≥1] + overflowed; distinct is the number
-// of ids with counts[id] > 0; s + Σ clogc(counts[id]) over big == Σ clogc(counts[id]) (see up); ids with a zero count
-// are on free and not in values.
+// of ids with counts[id] > 0; s + Σ clogc(counts[id]) over the ids in big ==
+// Σ clogc(counts[id]) over all ids (see up); ids with a zero count are on
+// free and not in values.
 type field struct {
 	name    string
 	nameKey wordKey // name's words, when 16 bytes or shorter (isNamed)
@@ -172,14 +173,24 @@ func (f *field) remove(id uint32) {
 
 // addHashed is add for a hashed field.
 func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
-	h := hashBytes(v)
-	id := probe(f.byHash, h, &f.ids)
+	id, isNew := f.addHash(hashBytes(v), int32(len(v)), maxDistinct)
+	if isNew && len(f.samples) < 3 {
+		f.samples = append(f.samples, string(v))
+	}
+	return id
+}
+
+// addHash is addHashed for a value known by its hash h and length l (a
+// flat identifier's list is replayed so: unflatten); isNew says the value
+// was not in the table.
+func (f *field) addHash(h uint64, l int32, maxDistinct int) (id uint32, isNew bool) {
+	id = probe(f.byHash, h, &f.ids)
 	if id == 0 {
 		if maxDistinct > 0 && int(f.distinct) >= maxDistinct {
 			f.overflowed++
 			f.present++
-			f.overflowBytes += int64(len(v))
-			return overflow
+			f.overflowBytes += int64(l)
+			return overflow, false
 		}
 		if n := len(f.free); n > 0 {
 			id = f.free[n-1]
@@ -188,11 +199,9 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 			id = uint32(len(f.counts))
 			f.counts = append(f.counts, 0)
 		}
-		f.ids.set(id, h, int32(len(v)))
+		f.ids.set(id, h, l)
 		f.byHash.insert(h, id)
-		if len(f.samples) < 3 {
-			f.samples = append(f.samples, string(v))
-		}
+		isNew = true
 	}
 	c := f.counts[id]
 	if c == 0 {
@@ -202,7 +211,7 @@ func (f *field) addHashed(v []byte, maxDistinct int) uint32 {
 	f.counts[id] = c + 1
 	f.present++
 	f.valueBytes += int64(f.ids.length(id))
-	return id
+	return id, isNew
 }
 
 // up is the change of s when value id, of count c, gains a record. s

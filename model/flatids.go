@@ -25,8 +25,9 @@ import (
 // reach MaxDistinct (past which values overflow, a decision made value by
 // value), and every field before anything reads ids from the store: a
 // flat field's store column is empty, its ids being made by unflatten.
-// Between settles the list grows by at least 1/flatLeave−1/identLeave of
-// itself, so settling costs O(n log n) over the whole run.
+// A settle that keeps a field listed finds a share of at least flatLeave,
+// so the list grows by a factor of flatLeave/identLeave (1.43) or more
+// before the next: the sorts of a whole run cost a few times the last.
 //
 // Entropy history notes (noteEntropies) taken while a field is flat are
 // placeholders, filled by unflatten, which replays the list in order: an
@@ -148,21 +149,21 @@ func (m *Model) settle(f *field) {
 	if fl == nil || fl.settled == m.st.n {
 		return
 	}
-	slices := 1
-	for slices < 256 && int(f.present)/slices > 1<<18 {
-		slices *= 2
+	parts := 1
+	for parts < 256 && int(f.present)/parts > 1<<18 {
+		parts *= 2
 	}
-	shift := 64 - bits.Len(uint(slices-1))
-	// A slice holds about present/slices hashes (they spread evenly);
+	shift := 64 - bits.Len(uint(parts-1))
+	// A slice holds about present/parts hashes (they spread evenly);
 	// room for a little more saves regrowing the buffer.
-	buf := make([]uint64, 0, int(f.present)/slices+int(f.present)/slices/16+64)
+	buf := make([]uint64, 0, int(f.present)/parts+int(f.present)/parts/16+64)
 	var distinct, s int64
-	for sl := range slices {
+	for part := range parts {
 		buf = buf[:0]
 		for c, chunk := range fl.h {
 			end := min(len(chunk), fl.n-c<<flatChunkBits)
 			for _, h := range chunk[:max(end, 0)] {
-				if h != 0 && (slices == 1 || int(h>>shift) == sl) {
+				if h != 0 && (parts == 1 || int(h>>shift) == part) {
 					buf = append(buf, h)
 				}
 			}
@@ -206,32 +207,18 @@ func (m *Model) unflatten(idx int) {
 	f.flat = nil
 	f.byHash = newHashTable(int(f.distinct))
 	f.counts = []int32{0}
-	f.distinct, f.s = 0, 0
-	var present int64
+	// Counted again as the list is replayed (to the same totals).
+	f.distinct, f.s, f.present, f.valueBytes = 0, 0, 0, 0
 	notes := fl.notes
 	var noted []float64
 	ids := make([]uint32, m.st.n)
 	for r := range ids {
-		h, l := fl.at(r)
-		if h != 0 {
-			id := probe(f.byHash, h, &f.ids)
-			if id == 0 {
-				id = uint32(len(f.counts))
-				f.counts = append(f.counts, 0)
-				f.ids.set(id, h, int32(l))
-				f.byHash.insert(h, id)
-			}
-			c := f.counts[id]
-			if c == 0 {
-				f.distinct++
-			}
-			f.s += f.up(int64(c), id)
-			f.counts[id] = c + 1
-			ids[r] = id
-			present++
+		if h, l := fl.at(r); h != 0 {
+			// No cap: a listed field stays under MaxDistinct (capFlat).
+			ids[r], _ = f.addHash(h, int32(l), 0)
 		}
 		for len(notes) > 0 && notes[0] == r+1 {
-			noted = append(noted, entropyFromS(int64(r+1), f.sum()+clogc(int64(r+1)-present)))
+			noted = append(noted, entropyFromS(int64(r+1), f.sum()+clogc(int64(r+1)-f.present)))
 			notes = notes[1:]
 		}
 	}

@@ -312,9 +312,7 @@ func (m *Model) track(idx int) {
 		}
 		a, b := min(idx, j), max(idx, j)
 		m.pairAt[[2]int{a, b}] = len(m.pairs)
-		cm := newCellMap()
-		cm.budget = &m.denseSpare
-		m.pairs = append(m.pairs, pair{a: a, b: b, m: cm})
+		m.pairs = append(m.pairs, pair{a: a, b: b, m: m.newPairTable()})
 		added = append(added, len(m.pairs)-1)
 	}
 	if len(added) == 0 || m.st.n == 0 {

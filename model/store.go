@@ -326,12 +326,7 @@ func (s *store) setColumn(j, lo int, ids []uint32) {
 		s.width = j + 1
 		s.out = make([]uint32, s.width)
 	}
-	for i, id := range ids {
-		if id != absent {
-			b, r := s.at(lo + i)
-			b.put(j, r, id)
-		}
-	}
+	s.putColumn(j, lo, ids)
 }
 
 // column returns field j's ids for the window records lo .. hi−1, oldest
