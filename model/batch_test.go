@@ -252,23 +252,12 @@ func TestHeadlessIdentifiersMatchTable(t *testing.T) {
 		batched := New(Options{Window: all, Headless: true})
 		single := New(Options{Window: all, Headless: true})
 		wasFlat, left := false, false
-		var recs []*parse.Record
-		var lines, times []int64
-		var one parse.Record
 		for i := 0; i < len(stream); {
 			k := min(len(stream)-i, 1+r.IntN(3000))
 			if r.IntN(4) == 0 {
 				k = min(len(stream)-i, 1+r.IntN(5))
 			}
-			recs, lines, times = recs[:0], lines[:0], times[:0]
-			for j := i; j < i+k; j++ {
-				rec := &parse.Record{}
-				toRecord(stream[j], rec, keys)
-				recs = append(recs, rec)
-				lines, times = append(lines, int64(j+1)), append(times, stream[j].time)
-				toRecord(stream[j], &one, keys)
-				single.Add(&one, int64(j+1), stream[j].time)
-			}
+			recs, lines, times := segmentOf(stream, keys, i, i+k, single)
 			table.AddBatch(recs, lines, times)
 			batched.AddBatch(recs, lines, times)
 			i += k
@@ -304,4 +293,19 @@ func TestHeadlessIdentifiersMatchTable(t *testing.T) {
 			}
 		}
 	}
+}
+
+// segmentOf is stream[i:j] as AddBatch takes it (records, line numbers
+// j+1, times), each record also added one by one to each of one.
+func segmentOf(stream []plainRec, keys []string, i, j int, one ...*Model) (recs []*parse.Record, lines, times []int64) {
+	for x := i; x < j; x++ {
+		rec := &parse.Record{}
+		toRecord(stream[x], rec, keys)
+		recs = append(recs, rec)
+		lines, times = append(lines, int64(x+1)), append(times, stream[x].time)
+		for _, m := range one {
+			m.Add(rec, int64(x+1), stream[x].time)
+		}
+	}
+	return recs, lines, times
 }

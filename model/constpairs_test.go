@@ -7,8 +7,6 @@ import (
 	"strconv"
 	"testing"
 	"time"
-
-	"bitsift/parse"
 )
 
 // TestConstantPairsMatchRecount: a field that is constant for long
@@ -52,18 +50,9 @@ func TestConstantPairsMatchRecount(t *testing.T) {
 		recs := stream(r, 12000)
 		batched, single := New(Options{Window: w}), New(Options{Window: w})
 		sawVirt := false
-		var batch []*parse.Record
-		var lines []int64
 		for i := 0; i < len(recs); {
 			k := min(len(recs)-i, 1+r.IntN(1200))
-			batch, lines = batch[:0], lines[:0]
-			for j := i; j < i+k; j++ {
-				rec := &parse.Record{}
-				toRecord(recs[j], rec, keys)
-				batch, lines = append(batch, rec), append(lines, recs[j].time)
-				single.Add(rec, int64(j+1), recs[j].time)
-			}
-			batched.AddBatch(batch, lines, lines)
+			batched.AddBatch(segmentOf(recs, keys, i, i+k, single))
 			i += k
 			for _, p := range batched.pairs {
 				sawVirt = sawVirt || p.virt
@@ -107,19 +96,9 @@ func TestRollingBaselineBatchMatchesAdd(t *testing.T) {
 		batched, single := New(Options{Window: w}), New(Options{Window: w})
 		batched.UseRollingBaseline()
 		single.UseRollingBaseline()
-		var batch []*parse.Record
-		var lines, times []int64
 		for i := 0; i < len(recs); {
 			k := min(len(recs)-i, 1+r.IntN(2500))
-			batch, lines, times = batch[:0], lines[:0], times[:0]
-			for j := i; j < i+k; j++ {
-				rec := &parse.Record{}
-				toRecord(recs[j], rec, keys)
-				batch = append(batch, rec)
-				lines, times = append(lines, int64(j+1)), append(times, recs[j].time)
-				single.Add(rec, int64(j+1), recs[j].time)
-			}
-			batched.AddBatch(batch, lines, times)
+			batched.AddBatch(segmentOf(recs, keys, i, i+k, single))
 			i += k
 			if !reflect.DeepEqual(batched.base.rolling, single.base.rolling) {
 				t.Fatalf("%s at %d: rolled profiles differ", w, i)
