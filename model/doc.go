@@ -59,8 +59,9 @@
 //   - snapshot.go, detail.go, subset.go: Snapshot and its accessors.
 //   - emi.go, reliable.go: expected mutual information, RFI, derived
 //     fields and best predictors.
-//   - deep.go, determinants.go, surprise.go: the Deep analyses over the
-//     newest records (run side by side, reading columns).
+//   - deep.go, determinants.go (+ determinants_groups.go, its partitions
+//     and counts), surprise.go: the Deep analyses over the newest records
+//     (run side by side, reading columns).
 //   - baseline.go, profile.go, shift.go, broken.go, analysis.go: baselines,
 //     the window's Profile, shifts and broken rules against it.
 package model
