@@ -30,7 +30,7 @@ var parallelFormats = map[string]bool{"json": true, "logfmt": true}
 // at its own reclassification and history points), and the less of the
 // model's work runs on the owner alone. 2048 lines (the model's largest
 // segment) spent about 0.15 CPU-s less on the owner than 512 over the
-// demo's 1M lines; six batches in flight hold a few MB.
+// demo's 1M lines; the batches in flight (see pipeline) hold a few MB.
 const (
 	batchLines = 2048    // lines per batch
 	batchBytes = 1 << 20 // text per batch, at most (a longer line is a batch of its own)
