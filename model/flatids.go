@@ -279,10 +279,10 @@ func (m *Model) reclassifyFlat() {
 // comparison sort (slices.Sort) of a million hashes took 5–10 times as
 // long, and settling sorts every flat identifier's list. One pass in place
 // on the top 8 bits (an American flag sort: each key swapped into its
-// bucket), then each bucket sorted least-significant digit first, 14 bits
-// a pass, through a scratch buffer the size of the largest bucket: about
-// 1/256 of the keys, as hashes spread evenly, where a plain LSD sort would
-// need a second array as large as the first.
+// bucket), then each bucket sorted most-significant digit first (sortLow)
+// through a scratch buffer the size of the largest bucket: about 1/256 of
+// the keys, as hashes spread evenly, where a plain LSD sort would need a
+// second array as large as the first.
 func sortHashes(hs []uint64) {
 	if len(hs) < 256 {
 		insertionSort(hs)
@@ -314,44 +314,52 @@ func sortHashes(hs []uint64) {
 	scratch := make([]uint64, widest)
 	lo := 0
 	for d := range 256 {
-		sortLow(hs[lo:end[d]], scratch)
+		sortLow(hs[lo:end[d]], scratch, 48)
 		lo = end[d]
 	}
 }
 
-// sortLow sorts hs, whose keys share their top 8 bits, least-significant
-// digit first through scratch (at least as long as hs).
-func sortLow(hs, scratch []uint64) {
-	const bits, passes = 14, 4 // 56 bits
-	if len(hs) < 256 {
-		insertionSort(hs)
-		return
-	}
-	src, dst := hs, scratch[:len(hs)]
-	var counts [1 << bits]int
-	for p := range passes {
-		shift := p * bits
-		clear(counts[:])
-		for _, h := range src {
-			counts[h>>shift&(1<<bits-1)]++
+// sortLow sorts hs, whose keys agree above bit shift+8, most-significant
+// digit first: a counting pass on the 8 bits at shift, the keys scattered
+// through scratch (at least as long as hs) and copied back, then each
+// digit's keys sorted alike on the next 8 bits. Random hashes leave a few
+// keys a digit after a pass or two, which an insertion sort finishes. An
+// LSD sort with wide digits (tried first) cleared and summed its count
+// table on every pass of every bucket, which on buckets of a thousand keys
+// cost more than the keys: 9% of a report's CPU.
+func sortLow(hs, scratch []uint64, shift int) {
+	for len(hs) > 32 && shift >= 0 {
+		var count [256]int
+		for _, h := range hs {
+			count[h>>shift&0xff]++
 		}
-		if counts[src[0]>>shift&(1<<bits-1)] == len(src) {
-			continue // every key has the same digit here
+		if count[hs[0]>>shift&0xff] == len(hs) {
+			shift -= 8 // every key has the same digit here
+			continue
 		}
 		sum := 0
-		for d, c := range counts {
-			counts[d], sum = sum, sum+c
+		for d, c := range count {
+			count[d], sum = sum, sum+c
 		}
-		for _, h := range src {
-			d := h >> shift & (1<<bits - 1)
-			dst[counts[d]] = h
-			counts[d]++
+		// count[d] is where digit d's keys start; after the scatter it is
+		// where they end.
+		dst := scratch[:len(hs)]
+		for _, h := range hs {
+			d := h >> shift & 0xff
+			dst[count[d]] = h
+			count[d]++
 		}
-		src, dst = dst, src
+		copy(hs, dst)
+		lo := 0
+		for _, end := range count {
+			if end-lo > 1 {
+				sortLow(hs[lo:end], scratch, shift-8)
+			}
+			lo = end
+		}
+		return
 	}
-	if &src[0] != &hs[0] {
-		copy(hs, src)
-	}
+	insertionSort(hs)
 }
 
 func insertionSort(hs []uint64) {

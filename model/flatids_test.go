@@ -157,3 +157,17 @@ func TestHeadlessTimelineSeesIdentifierGaps(t *testing.T) {
 		t.Fatalf("the table model reports no gap for trace: %+v", want)
 	}
 }
+
+// BenchmarkSortHashes: one settle slice's worth of random hashes (2^18).
+func BenchmarkSortHashes(b *testing.B) {
+	r := rand.New(rand.NewPCG(5, 6))
+	src := make([]uint64, 1<<18)
+	for i := range src {
+		src[i] = r.Uint64()
+	}
+	hs := make([]uint64, len(src))
+	for b.Loop() {
+		copy(hs, src)
+		sortHashes(hs)
+	}
+}
