@@ -9,6 +9,7 @@ import (
 	"os/signal"
 	"runtime/debug"
 	"runtime/pprof"
+	"runtime/trace"
 	"syscall"
 	"time"
 
@@ -68,12 +69,22 @@ func main() {
 			}
 		}
 	}
+	// BITSIFT_TRACE=file writes an execution trace, for `go tool trace`:
+	// where the goroutines wait, which a CPU profile does not show.
+	if path := os.Getenv("BITSIFT_TRACE"); path != "" {
+		if f, err := os.Create(path); err == nil {
+			if trace.Start(f) == nil {
+				defer f.Close()
+			}
+		}
+	}
 	code := cli.Run(ctx, os.Args[1:], cli.IO{
 		In: os.Stdin, Out: os.Stdout, Err: os.Stderr,
 		IsTerminal: isatty.IsTerminal(os.Stdout.Fd()),
 	})
 	signal.Stop(sigs)
 	pprof.StopCPUProfile()
+	trace.Stop()
 	if path := os.Getenv("BITSIFT_MEMPROFILE"); path != "" {
 		if f, err := os.Create(path); err == nil {
 			pprof.Lookup("heap").WriteTo(f, 0)

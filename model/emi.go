@@ -45,17 +45,34 @@ const lfactTable = 1 << 16
 
 // logFact is ln k!.
 func logFact(k int) float64 {
-	lfact.once.Do(func() {
-		lfact.t = make([]float64, lfactTable)
-		for i := range lfact.t {
-			lfact.t[i], _ = math.Lgamma(float64(i) + 1)
-		}
-	})
+	lfact.once.Do(fillLogTables)
 	if k < lfactTable {
 		return lfact.t[k]
 	}
 	v, _ := math.Lgamma(float64(k) + 1)
 	return v
+}
+
+// lnInt caches ln k for k below lfactTable, as math.Log computes it (so a
+// sum reads the same either way): the inner sum of E[I] takes one for
+// every term, and math.Log was 9% of a report's CPU.
+var lnInt []float64
+
+func fillLogTables() {
+	lfact.t = make([]float64, lfactTable)
+	lnInt = make([]float64, lfactTable)
+	for i := range lfact.t {
+		lfact.t[i], _ = math.Lgamma(float64(i) + 1)
+		lnInt[i] = math.Log(float64(i))
+	}
+}
+
+// logInt is ln k for k ≥ 1.
+func logInt(k int) float64 {
+	if k < lfactTable {
+		return lnInt[k]
+	}
+	return math.Log(float64(k))
 }
 
 // countHist is a count vector folded into distinct counts with their
@@ -138,7 +155,7 @@ func emiCell(a, b, n int, N float64, fixed float64) float64 {
 	lab := math.Log(N / (float64(a) * float64(b)))
 	term := func(k int, p float64) float64 {
 		x := float64(k)
-		return p * x / N * (lab + math.Log(x))
+		return p * x / N * (lab + logInt(k))
 	}
 	sum := term(mode, p0)
 	p := p0
