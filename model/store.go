@@ -1,6 +1,9 @@
 package model
 
-import "sync/atomic"
+import (
+	"encoding/binary"
+	"sync/atomic"
+)
 
 // store keeps the value ids of the records in the window, oldest first, so
 // that a record leaving the window can be taken off the counts, and so that
@@ -271,11 +274,46 @@ func (s *store) reserve(w int, lines, times []int64) {
 
 // putColumn writes ids as field j's ids of the records from window index
 // lo on, in rows reserve made (each field's goroutine its own column).
+// It goes a block at a time: the column is widened once for the run's
+// largest id, then written in one loop of its width (id by id, through
+// put, this was 7% of a report's CPU). Writing absent (0) over a slot that
+// holds absent changes nothing.
 func (s *store) putColumn(j, lo int, ids []uint32) {
-	for r, id := range ids {
-		if id != absent {
-			b, i := s.at(lo + r)
-			b.put(j, i, id)
+	for len(ids) > 0 {
+		b, i := s.at(lo)
+		run := ids[:min(len(ids), blockRows-i)]
+		ids, lo = ids[len(run):], lo+len(run)
+		var top uint32
+		for _, id := range run {
+			top = max(top, id)
+		}
+		if top == absent {
+			continue
+		}
+		for len(b.width) <= j {
+			b.width = append(b.width, 0)
+			b.cols = append(b.cols, nil)
+		}
+		if need := idWidth(top); need > b.width[j] {
+			b.widen(j, need)
+		}
+		c := b.cols[j]
+		switch b.width[j] {
+		case 1:
+			c = c[i : i+len(run)]
+			for r, id := range run {
+				c[r] = byte(id)
+			}
+		case 2:
+			c = c[2*i : 2*(i+len(run))]
+			for r, id := range run {
+				binary.LittleEndian.PutUint16(c[2*r:], uint16(id))
+			}
+		default:
+			c = c[4*i : 4*(i+len(run))]
+			for r, id := range run {
+				binary.LittleEndian.PutUint32(c[4*r:], id)
+			}
 		}
 	}
 }
