@@ -2,6 +2,7 @@ package model
 
 import (
 	"runtime"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -14,8 +15,9 @@ import (
 // does the work in passes that run over all the records of a segment:
 //
 //  1. keys → fields, record by record (new fields start here, and their
-//     pair tables are filled from the records already counted), each
-//     value into its field's list;
+//     pair tables are filled from the records already counted): a run of
+//     records with the same keys in the same order (parse.Record.SameKeys)
+//     shares one shape, where each field's value is in them;
 //  2. the records' rows are made in the store (times, line numbers);
 //  3. values → ids, field by field, the fields spread over the cores (each
 //     field's table is its own, and its values go in input order, so the
@@ -42,16 +44,14 @@ const parallelMin = 4096
 
 // batchState is AddBatch's scratch, kept between calls.
 type batchState struct {
-	byF   [][]entry // byF[f]: field f's values in the segment, in input order
+	// shape[r] is record r's shape: its field f's value is its key
+	// pos[shape[r]*w+f], none when -1 (w fields, those after step 1).
+	shape []int32
+	pos   []int32
+	byKey [][]int32 // per shape, the field of each key (-1: none), made in step 1
 	cols  []uint32  // cols[f*k+r]: record r's id of field f
 	evict []uint32  // ids of evicted rows, column-major
 	after []int     // see evictions
-}
-
-// entry is a field's value in record r of a segment.
-type entry struct {
-	r int32
-	v []byte
 }
 
 // AddBatch takes recs[i] (line lines[i], time times[i]) into the window in
@@ -90,33 +90,53 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	b := &m.batch
 	k := len(recs)
 	m.capFlat(k)
-	// 1. Keys to fields, each value straight into its field's list (a
-	// field has at most one value a record, so the lists hold each
-	// field's values in input order).
-	for f := range b.byF {
-		b.byF[f] = b.byF[f][:0]
-	}
+	// 1. Keys to fields, once for each run of records with the same keys.
+	b.shape = b.shape[:0]
+	nShapes := 0
 	values := 0
 	for r, rec := range recs {
+		if r > 0 && rec.SameKeys(recs[r-1]) {
+			b.shape = append(b.shape, b.shape[r-1])
+			values += m.shapeValues
+			continue
+		}
 		m.gen++
 		if m.gen == 0 {
 			clear(m.mark)
 			m.gen = 1
 		}
+		if nShapes == len(b.byKey) {
+			b.byKey = append(b.byKey, nil)
+		}
+		byKey := b.byKey[nShapes][:0]
+		m.shapeValues = 0
 		for i := 0; i < rec.Len(); i++ {
 			idx := m.fieldOf(rec.Key(i), i)
-			if idx < 0 || m.mark[idx] == m.gen {
-				continue // past the field cap, or a repeated key: the first one counts
+			if idx >= 0 && m.mark[idx] != m.gen {
+				m.mark[idx] = m.gen
+				m.shapeValues++
+			} else {
+				idx = -1 // past the field cap, or a repeated key: the first one counts
 			}
-			m.mark[idx] = m.gen
-			for len(b.byF) <= idx {
-				b.byF = append(b.byF, nil)
-			}
-			b.byF[idx] = append(b.byF[idx], entry{int32(r), rec.Value(i)})
-			values++
+			byKey = append(byKey, int32(idx))
 		}
+		b.byKey[nShapes] = byKey
+		b.shape = append(b.shape, int32(nShapes))
+		nShapes++
+		values += m.shapeValues
 	}
 	w := len(m.fields)
+	b.pos = slices.Grow(b.pos[:0], nShapes*w)[:nShapes*w]
+	for i := range b.pos {
+		b.pos[i] = -1
+	}
+	for sh, byKey := range b.byKey[:nShapes] {
+		for i, f := range byKey {
+			if f >= 0 {
+				b.pos[sh*w+int(f)] = int32(i)
+			}
+		}
+	}
 	// 2. Which records the window evicts after each record, as Add would.
 	nOld := m.st.n
 	e := m.evictions(times)
@@ -147,15 +167,10 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		col := ev[f*e : (f+1)*e]
 		ids := cols[f*k : (f+1)*k]
 		clear(ids)
-		var ents []entry
-		if f < len(b.byF) {
-			ents = b.byF[f]
-		}
 		gone := 0
 		for r := 0; r < k; r++ {
-			if len(ents) > 0 && int(ents[0].r) == r {
-				ids[r] = fl.addAt(ents[0].v, maxD, nOld+r)
-				ents = ents[1:]
+			if i := b.pos[int(b.shape[r])*w+f]; i >= 0 {
+				ids[r] = fl.addAt(recs[r].Value(int(i)), maxD, nOld+r)
 			}
 			for ; gone < b.after[r]; gone++ {
 				if gone >= old {

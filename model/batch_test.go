@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"reflect"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -17,11 +18,16 @@ import (
 type plainRec struct {
 	kv   map[string]string
 	time int64
+	// reversed: the record lists its keys in the reverse order; dup: it
+	// names level a second time with this value (the first one counts).
+	reversed bool
+	dup      string
 }
 
 // randomStream makes n records over eight fields that appear, vanish, turn
 // constant and back, and an identifier that stops being one (unique values,
-// then a handful).
+// then a handful); now and then a record lists its keys in another order,
+// or names a field twice.
 func randomStream(r *rand.Rand, n int) []plainRec {
 	out := make([]plainRec, n)
 	t := int64(0)
@@ -53,13 +59,20 @@ func randomStream(r *rand.Rand, n int) []plainRec {
 			kv["rare_"+strconv.Itoa(r.IntN(4))] = "x"
 		}
 		t += int64(r.IntN(3)) * int64(time.Millisecond)
-		out[i] = plainRec{kv, t}
+		out[i] = plainRec{kv: kv, time: t, reversed: r.IntN(30) == 0}
+		if r.IntN(40) == 0 {
+			out[i].dup = "dup" + strconv.Itoa(r.IntN(3))
+		}
 	}
 	return out
 }
 
 func toRecord(p plainRec, rec *parse.Record, keys []string) {
 	rec.Reset()
+	if p.reversed {
+		keys = slices.Clone(keys)
+		slices.Reverse(keys)
+	}
 	for _, k := range keys {
 		if v, ok := p.kv[k]; ok {
 			rec.AddString(k, v)
@@ -79,6 +92,9 @@ func toRecord(p plainRec, rec *parse.Record, keys []string) {
 	}
 	for _, k := range extra {
 		rec.AddString(k, p.kv[k])
+	}
+	if p.dup != "" {
+		rec.AddString("level", p.dup)
 	}
 }
 

@@ -40,7 +40,7 @@ func TestConstantPairsMatchRecount(t *testing.T) {
 			} else {
 				kv["crane"] = "c" + strconv.Itoa(r.IntN(4))
 			}
-			out[i] = plainRec{kv, int64(i) * int64(time.Millisecond)}
+			out[i] = plainRec{kv: kv, time: int64(i) * int64(time.Millisecond)}
 		}
 		return out
 	}

@@ -114,3 +114,19 @@ func (r *Record) rollback(m mark) {
 	r.buf = r.buf[:m.buf]
 	r.spans = r.spans[:m.spans]
 }
+
+// SameKeys says whether r and o have the same keys in the same order.
+// Records of one stream mostly do, and the model then maps the keys to
+// its fields once for a run of such records.
+func (r *Record) SameKeys(o *Record) bool {
+	if len(r.spans) != len(o.spans) {
+		return false
+	}
+	for i, s := range r.spans {
+		t := o.spans[i]
+		if s.k1-s.k0 != t.k1-t.k0 || string(r.buf[s.k0:s.k1]) != string(o.buf[t.k0:t.k1]) {
+			return false
+		}
+	}
+	return true
+}

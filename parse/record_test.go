@@ -21,3 +21,31 @@ func TestRecordSetValue(t *testing.T) {
 		t.Errorf("copy: %s", v)
 	}
 }
+
+// TestSameKeys: the same keys in the same order, whatever the values; a
+// key of another length or text, another order or count, is not the same.
+func TestSameKeys(t *testing.T) {
+	rec := func(kv ...string) *Record {
+		r := &Record{}
+		for i := 0; i+1 < len(kv); i += 2 {
+			r.AddString(kv[i], kv[i+1])
+		}
+		return r
+	}
+	a := rec("berth", "b1", "crane", "c2")
+	for _, c := range []struct {
+		b    *Record
+		same bool
+	}{
+		{rec("berth", "b9999", "crane", ""), true},
+		{rec("crane", "c2", "berth", "b1"), false},
+		{rec("berth", "b1"), false},
+		{rec("berth", "b1", "crane", "c2", "tide", "4"), false},
+		{rec("berth", "b1", "cranf", "c2"), false},
+		{rec("berth", "b1", "cran", "ec2"), false},
+	} {
+		if got := a.SameKeys(c.b); got != c.same || c.b.SameKeys(a) != c.same {
+			t.Errorf("SameKeys(%v) = %v, want %v", c.b.spans, got, c.same)
+		}
+	}
+}
