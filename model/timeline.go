@@ -163,68 +163,79 @@ type fieldGaps struct {
 const maxRuns = 8
 
 func (m *Model) timelineRules(s *Snapshot, chunks int) []*ruleSeries {
+	// Each pair, both ways, is judged on its own (spread over the cores),
+	// into its own slot: the rules come out in pair order.
+	found := make([]*ruleSeries, 2*len(m.pairs))
+	spread(parallelMin*len(found), len(found), func(i int) {
+		pr := &m.pairs[i/2]
+		t, g := pr.a, pr.b
+		if i%2 == 1 {
+			t, g = pr.b, pr.a
+		}
+		found[i] = m.timelineRule(s, chunks, pr, t, g)
+	})
 	var out []*ruleSeries
-	for _, pr := range m.pairs {
-		for _, dir := range [][2]int{{pr.a, pr.b}, {pr.b, pr.a}} {
-			t, g := dir[0], dir[1]
-			ft, fg := &s.Fields[t], &s.Fields[g]
-			if ft.Kind == Constant || fg.Kind == Constant || ft.Kind == Identifier || fg.Kind == Identifier ||
-				fg.Distinct*20 > m.st.n || (ft.Synthetic != nil && ft.Synthetic.Source == fg.Name) ||
-				(fg.Synthetic != nil && fg.Synthetic.Source == ft.Name) {
-				continue
-			}
-			type best struct {
-				id   uint32
-				c, n int32
-			}
-			by := map[uint32]*best{}
-			pr.m.each(func(k uint64, c int32) {
-				gi, ti := uint32(k>>32), uint32(k)
-				if g == pr.b {
-					gi, ti = ti, gi
-				}
-				if gi == absent || gi == overflow {
-					return
-				}
-				b := by[gi]
-				if b == nil {
-					b = &best{}
-					by[gi] = b
-				}
-				b.n += c
-				if c > b.c {
-					b.id, b.c = ti, c
-				}
-			})
-			cover, total := 0, 0
-			expect := make([]uint32, len(m.fields[g].counts))
-			for i := range expect {
-				expect[i] = noExpect
-			}
-			for gi, b := range by {
-				if b.id == absent {
-					// "Mostly absent" is no rule about values (a rare
-					// field): its stretches show as shifts instead.
-					continue
-				}
-				cover += int(b.c)
-				total += int(b.n)
-				if int(gi) < len(expect) {
-					expect[gi] = b.id
-				}
-			}
-			if total == 0 || cover == total || float64(cover) < ruleMinCover*float64(total) {
-				continue
-			}
-			r := &ruleSeries{t: t, g: g, expect: expect, has: make([]int, chunks), broke: make([]int, chunks),
-				first: make([]int, chunks), last: make([]int, chunks)}
-			for i := range r.first {
-				r.first[i] = -1
-			}
+	for _, r := range found {
+		if r != nil {
 			out = append(out, r)
 		}
 	}
 	return out
+}
+
+// timelineRule is the rule g → t of pair pr, nil when there is none to
+// follow.
+func (m *Model) timelineRule(s *Snapshot, chunks int, pr *pair, t, g int) *ruleSeries {
+	ft, fg := &s.Fields[t], &s.Fields[g]
+	if ft.Kind == Constant || fg.Kind == Constant || ft.Kind == Identifier || fg.Kind == Identifier ||
+		fg.Distinct*20 > m.st.n || (ft.Synthetic != nil && ft.Synthetic.Source == fg.Name) ||
+		(fg.Synthetic != nil && fg.Synthetic.Source == ft.Name) {
+		return nil
+	}
+	// By Given id: its most frequent Target id, that one's count, and the
+	// records with the Given value (a slice: ids are dense).
+	type best struct {
+		id   uint32
+		c, n int32
+	}
+	by := make([]best, len(m.fields[g].counts))
+	pr.m.each(func(k uint64, c int32) {
+		gi, ti := uint32(k>>32), uint32(k)
+		if g == pr.b {
+			gi, ti = ti, gi
+		}
+		if gi == absent || gi == overflow || int(gi) >= len(by) {
+			return
+		}
+		b := &by[gi]
+		b.n += c
+		if c > b.c {
+			b.id, b.c = ti, c
+		}
+	})
+	cover, total := 0, 0
+	expect := make([]uint32, len(m.fields[g].counts))
+	for gi := range by {
+		b := &by[gi]
+		expect[gi] = noExpect
+		if b.n == 0 || b.id == absent {
+			// "Mostly absent" is no rule about values (a rare field):
+			// its stretches show as shifts instead.
+			continue
+		}
+		cover += int(b.c)
+		total += int(b.n)
+		expect[gi] = b.id
+	}
+	if total == 0 || cover == total || float64(cover) < ruleMinCover*float64(total) {
+		return nil
+	}
+	r := &ruleSeries{t: t, g: g, expect: expect, has: make([]int, chunks), broke: make([]int, chunks),
+		first: make([]int, chunks), last: make([]int, chunks)}
+	for i := range r.first {
+		r.first[i] = -1
+	}
+	return r
 }
 
 func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
@@ -250,41 +261,43 @@ func (m *Model) timelineDists(s *Snapshot, chunks int) []*distSeries {
 	return out
 }
 
+// timelineSpan is how many rows the scan decodes at a time: the columns
+// the rules and distributions read, for that many rows, are decoded once
+// (each at most 4 bytes a row: 256 KB) and shared by the tasks.
+const timelineSpan = 1 << 16
+
 func (sc *timelineScan) scan(sources []string) {
 	m := sc.m
 	sc.tracer = m.Tracer(sources)
-	// Where each field is missing is found from its column on another
-	// goroutine, beside the rules and distributions (row by row here).
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		sc.scanGaps()
-	}()
-	for r := 0; r < sc.n; r++ {
-		row := m.st.row(r)
-		k := r / sc.size
-		for _, rs := range sc.rules {
-			gid := idAt(row, rs.g)
-			if int(gid) >= len(rs.expect) || rs.expect[gid] == noExpect {
-				continue
-			}
-			rs.has[k]++
-			if idAt(row, rs.t) != rs.expect[gid] {
-				rs.broke[k]++
-				if rs.first[k] < 0 {
-					rs.first[k] = r
-				}
-				rs.last[k] = r
-			}
-		}
-		for _, d := range sc.dists {
-			id := idAt(row, d.idx)
-			if int(id) < len(d.bucket) {
-				d.counts[k][d.bucket[id]]++
-			}
-		}
+	// The rules and distributions read columns, a span of rows at a time:
+	// each column a span once, then each rule and distribution (a task of
+	// its own, spread over the cores) over its columns. Every task keeps
+	// its own series and takes its rows in order, so the figures are those
+	// of a scan row by row.
+	need := map[int]bool{}
+	for _, rs := range sc.rules {
+		need[rs.g], need[rs.t] = true, true
 	}
-	<-done
+	for _, d := range sc.dists {
+		need[d.idx] = true
+	}
+	cols := make(map[int][]uint32, len(need))
+	tasks := len(sc.rules) + len(sc.dists)
+	for lo := 0; lo < sc.n; lo += timelineSpan {
+		hi := min(lo+timelineSpan, sc.n)
+		for j := range need {
+			cols[j] = m.st.column(j, lo, hi, cols[j])
+		}
+		spread((hi-lo)*tasks, tasks, func(i int) {
+			if i < len(sc.rules) {
+				sc.scanRule(sc.rules[i], lo, cols[sc.rules[i].g], cols[sc.rules[i].t])
+			} else {
+				sc.scanDist(sc.dists[i-len(sc.rules)], lo, cols[sc.dists[i-len(sc.rules)].idx])
+			}
+		})
+	}
+	// Where each field is missing, from its column.
+	sc.scanGaps()
 	sc.fileRank = map[string]int{}
 	for i, f := range sources {
 		if _, ok := sc.fileRank[f]; !ok {
@@ -293,28 +306,77 @@ func (sc *timelineScan) scan(sources []string) {
 	}
 }
 
-// scanGaps notes where each field is present, column by column. A flat
-// identifier's ids are not in the store: whether a record has it is in its
-// list (a zero hash is absent).
+// scanRule takes rows lo, lo+1, … (given's and target's ids) into rs.
+func (sc *timelineScan) scanRule(rs *ruleSeries, lo int, given, target []uint32) {
+	target = target[:len(given)]
+	for x, gid := range given {
+		if int(gid) >= len(rs.expect) || rs.expect[gid] == noExpect {
+			continue
+		}
+		r := lo + x
+		k := r / sc.size
+		rs.has[k]++
+		if target[x] != rs.expect[gid] {
+			rs.broke[k]++
+			if rs.first[k] < 0 {
+				rs.first[k] = r
+			}
+			rs.last[k] = r
+		}
+	}
+}
+
+// scanDist takes rows lo, lo+1, … (the field's ids) into d.
+func (sc *timelineScan) scanDist(d *distSeries, lo int, ids []uint32) {
+	for x, id := range ids {
+		if int(id) < len(d.bucket) {
+			d.counts[(lo+x)/sc.size][d.bucket[id]]++
+		}
+	}
+}
+
+// scanGaps notes where each field is present, column by column, the
+// fields spread over the cores. A flat identifier's ids are not in the
+// store: whether a record has it is in its list (a zero hash is absent).
 func (sc *timelineScan) scanGaps() {
-	var col []uint32
-	for i, f := range sc.m.fields {
-		g := &sc.gaps[i]
-		col = sc.m.st.column(i, 0, sc.n, col)
-		for r, id := range col {
-			if id == absent {
-				if f.flat == nil {
-					continue
-				} else if h, _ := f.flat.at(r); h == 0 {
-					continue
+	fields := sc.m.fields
+	spread(sc.n*len(fields), len(fields), func(i int) {
+		f, g := fields[i], &sc.gaps[i]
+		// A record with the field right after the last one is counted
+		// here; note sees only the first and those after a gap.
+		if fl := f.flat; fl != nil {
+			for c, chunk := range fl.h {
+				base := c << flatChunkBits
+				for x, h := range chunk[:max(min(len(chunk), min(fl.n, sc.n)-base), 0)] {
+					if h != 0 {
+						if r := base + x; r == g.last+1 && g.last >= 0 {
+							g.last, g.present = r, g.present+1
+						} else {
+							g.note(r)
+						}
+					}
 				}
 			}
-			g.note(r)
+		} else {
+			var col []uint32
+			for lo := 0; lo < sc.n; lo += timelineSpan {
+				hi := min(lo+timelineSpan, sc.n)
+				col = sc.m.st.column(i, lo, hi, col)
+				for x, id := range col {
+					if id != absent {
+						if r := lo + x; r == g.last+1 && g.last >= 0 {
+							g.last, g.present = r, g.present+1
+						} else {
+							g.note(r)
+						}
+					}
+				}
+			}
 		}
 		if g.last >= 0 && g.last < sc.n-1 {
 			g.keep(segment{g.last + 1, sc.n})
 		}
-	}
+	})
 }
 
 func (g *fieldGaps) note(r int) {
