@@ -41,11 +41,17 @@ func checkBaseline(in *ingest.Ingester, p *model.Profile) error {
 }
 
 // buildReport builds the report of snap with the timeline of what changed
-// along the window (model.Timeline), which needs no baseline.
+// along the window (model.Timeline), which needs no baseline: the
+// snapshot's, when it was taken with one (SnapshotOptions.Timeline, made
+// beside the Deep analyses).
 func buildReport(in *ingest.Ingester, snap *model.Snapshot) *report.Report {
 	r := report.Build(snap)
 	r.Narrowed = narrowOf(in)
-	r.AddTimeline(in.Model().Timeline(snap, snap.Input.Sources), model.TimelineMethod)
+	tl := snap.Timeline
+	if tl == nil {
+		tl = in.Model().Timeline(snap, snap.Input.Sources)
+	}
+	r.AddTimeline(tl, model.TimelineMethod)
 	r.AddTraces(report.NewTracer(in.Model(), snap.Input.Sources))
 	return r
 }

@@ -53,7 +53,7 @@ func (c *reportCmd) groups(ctx context.Context, rep *report.Report, snap *model.
 		if err := in.ReadFiles(ctx, paths); errors.Is(err, context.Canceled) {
 			return err
 		}
-		gs := in.Snapshot(model.SnapshotOptions{Deep: true})
+		gs := in.Snapshot(model.SnapshotOptions{Deep: true, Timeline: true})
 		rep.Groups = append(rep.Groups, report.Group{Value: v.Value, Absent: v.Absent, Report: buildReport(in, gs)})
 	}
 	return nil

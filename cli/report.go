@@ -217,7 +217,7 @@ func quietGC() (restore func()) {
 
 func writeReport(ctx context.Context, std IO, in *ingest.Ingester, format string, readErr error, more func(*report.Report, *model.Snapshot) error) error {
 	defer quietGC()()
-	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true})
+	snap, err := in.SnapshotContext(ctx, model.SnapshotOptions{Deep: true, Profile: true, Timeline: true})
 	if err != nil {
 		return err
 	}

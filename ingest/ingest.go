@@ -460,7 +460,12 @@ func (in *Ingester) Snapshot(opt model.SnapshotOptions) *model.Snapshot {
 
 // SnapshotContext is Snapshot, given up when ctx is done (see
 // model.Model.SnapshotContext): the error is then ctx's.
+//
+// A Timeline asked for without Sources is made with the stream's inputs.
 func (in *Ingester) SnapshotContext(ctx context.Context, opt model.SnapshotOptions) (*model.Snapshot, error) {
+	if opt.Timeline && opt.Sources == nil {
+		opt.Sources = append([]string(nil), in.input.Sources...)
+	}
 	s, err := in.model.SnapshotContext(ctx, opt)
 	if err != nil {
 		return nil, err

@@ -69,15 +69,25 @@ func (m *Model) analyse(s *Snapshot, opt SnapshotOptions) {
 			k = 10
 		}
 		s.DeepRecords = m.deepRows()
-		// The two scans only read the model: they run side by side.
+		// The scans only read the model (snapshot made every pair table
+		// real): they run side by side.
 		var wg sync.WaitGroup
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			s.Changes.Surprising = m.surprising(s, base, k)
 		}()
+		if opt.Timeline {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				s.Timeline = m.Timeline(s, opt.Sources)
+			}()
+		}
 		s.Determinants, s.DeterminantsCut = m.determinants(s)
 		wg.Wait()
+	} else if opt.Timeline {
+		s.Timeline = m.Timeline(s, opt.Sources)
 	}
 	if opt.Profile {
 		s.Profile = m.buildProfile(s)

@@ -105,6 +105,9 @@ type Snapshot struct {
 	// determinants and surprising records cover (at most DeepMaxRecords;
 	// 0 without Deep).
 	DeepRecords int
+	// Timeline is the window's findings along log time
+	// (SnapshotOptions.Timeline; see Model.Timeline); nil otherwise.
+	Timeline []TimelineEntry
 	// Changes compares the window with the baseline and lists surprising
 	// records (SnapshotOptions.Deep, or a baseline being set); nil
 	// otherwise.
@@ -224,6 +227,11 @@ type SnapshotOptions struct {
 	// Profile adds the window's profile (Snapshot.Profile), which a later
 	// run can use as its baseline.
 	Profile bool
+	// Timeline adds Snapshot.Timeline, Model.Timeline of the snapshot
+	// with Sources (the inputs in the order they were read), made beside
+	// the Deep analyses.
+	Timeline bool
+	Sources  []string
 }
 
 // Snapshot copies out the current figures. It costs O(fields² + values),

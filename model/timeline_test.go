@@ -1,7 +1,13 @@
 package model_test
 
 import (
+	"context"
+	"errors"
 	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"reflect"
 	"testing"
 
 	"bitsift/demo"
@@ -132,4 +138,40 @@ func BenchmarkTimeline(b *testing.B) {
 			in.Snapshot(model.SnapshotOptions{Deep: true, Profile: true})
 		}
 	})
+}
+
+// TestTimelineBesideDeep: a timeline made beside a Deep snapshot's analyses
+// (SnapshotOptions.Timeline) is the one Model.Timeline makes after it
+// (under -race, this also checks that the scans share the model safely).
+func TestTimelineBesideDeep(t *testing.T) {
+	var text []byte
+	for i := 1; i <= 20_000; i++ {
+		s := fmt.Sprintf(`{"berth":"b%d","tide":"%s","crane":"c%d"`, i%7, []string{"ebb", "flood"}[i%2], i%7%3)
+		if i <= 12_000 {
+			s += fmt.Sprintf(`,"pilot":"p%d"`, i%5)
+		}
+		if i > 15_000 && i%7 == 1 {
+			s = `{"berth":"b1","tide":"ebb","crane":"c2"` // a stretch of other tides and cranes
+		}
+		text = append(text, s+"}\n"...)
+	}
+	path := filepath.Join(t.TempDir(), "quay.log")
+	if err := os.WriteFile(path, text, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	in, err := ingest.New(ingest.Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := in.ReadFiles(context.Background(), []string{path}); err != nil && !errors.Is(err, io.EOF) {
+		t.Fatal(err)
+	}
+	snap := in.Snapshot(model.SnapshotOptions{Deep: true, Timeline: true})
+	want := in.Model().Timeline(in.Snapshot(model.SnapshotOptions{Deep: true}), []string{path})
+	if len(want) == 0 || want[0].First.File != path {
+		t.Fatalf("the stream has no findings to compare, or they lack the file: %+v", want)
+	}
+	if !reflect.DeepEqual(snap.Timeline, want) {
+		t.Errorf("beside the Deep analyses:\n%+v\nafter them:\n%+v", snap.Timeline, want)
+	}
 }
