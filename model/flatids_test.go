@@ -34,7 +34,9 @@ func TestSortHashes(t *testing.T) {
 
 // TestSettleSlices: a flat identifier of 600,000 records (settled in
 // slices of its hash space) has the figures of the same identifier kept
-// in a table, on values that repeat (a value every 450,000 records).
+// in a table, on values that repeat (a value every 450,000 records); so
+// does one where a few values take a third of the records (buckets of
+// thousands of equal hashes).
 func TestSettleSlices(t *testing.T) {
 	all := Window{Kind: WindowAll}
 	flat, table := New(Options{Window: all, Headless: true}), New(Options{Window: all})
@@ -43,11 +45,16 @@ func TestSettleSlices(t *testing.T) {
 		rec.Reset()
 		rec.AddString("id", "v"+strconv.Itoa(i%450_000))
 		rec.AddString("level", []string{"info", "warn"}[i%2])
+		if i%3 == 0 {
+			rec.AddString("ticket", "t"+strconv.Itoa(i%5))
+		} else {
+			rec.AddString("ticket", "t"+strconv.Itoa(i))
+		}
 		flat.Add(&rec, int64(i), int64(i))
 		table.Add(&rec, int64(i), int64(i))
 	}
-	if flat.fields[0].flat == nil {
-		t.Fatal("the identifier was not listed")
+	if flat.fields[0].flat == nil || flat.fields[2].flat == nil {
+		t.Fatal("the identifiers were not listed")
 	}
 	got, want := flat.Snapshot(SnapshotOptions{}), table.Snapshot(SnapshotOptions{})
 	got.Taken, want.Taken = time.Time{}, time.Time{}
@@ -169,5 +176,30 @@ func BenchmarkSortHashes(b *testing.B) {
 	for b.Loop() {
 		copy(hs, src)
 		sortHashes(hs)
+	}
+}
+
+// BenchmarkSettle: settling a listed identifier of 1M unique values (what
+// a report's final snapshot does for each; four slices of its hashes).
+func BenchmarkSettle(b *testing.B) {
+	m := New(Options{Window: Window{Kind: WindowAll}, Headless: true})
+	recs := make([]parse.Record, 2048)
+	ptrs := make([]*parse.Record, len(recs))
+	lines := make([]int64, len(recs))
+	for i := 0; i < 1_000_000; i += len(recs) {
+		for j := range recs {
+			recs[j].Reset()
+			recs[j].AddString("req", strconv.Itoa(i+j))
+			ptrs[j], lines[j] = &recs[j], int64(i+j)
+		}
+		m.AddBatch(ptrs, lines, lines)
+	}
+	f := m.fields[0]
+	if f.flat == nil {
+		b.Fatal("not listed")
+	}
+	for b.Loop() {
+		f.flat.settled = 0
+		m.settle(f)
 	}
 }
