@@ -35,6 +35,8 @@ type cellMap struct {
 	// (see denseSpare); borrowed is what this one holds of it.
 	budget   *atomic.Int64
 	borrowed int64
+	// touched keeps countHashed's first loop from being optimised away.
+	touched int32
 }
 
 // denseSpare is the memory, over a whole model, that matrices filled under a
@@ -187,7 +189,11 @@ func (m *cellMap) inc(k uint64) {
 			return
 		}
 	}
-	i := m.slot(k)
+	m.incFrom(k, m.slot(k))
+}
+
+// incFrom is inc in hash mode, with k's home slot i.
+func (m *cellMap) incFrom(k uint64, i uint64) {
 	for {
 		c := m.counts[i]
 		if c == 0 {
