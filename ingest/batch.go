@@ -10,8 +10,9 @@ import (
 
 // batch is a run of consecutive lines of a source, their text in one
 // buffer, on their way to the Ingester. The live reader fills one under the
-// handoff's lock (handoff.go), the pipeline's reader one per chunk
-// (pipeline.go); the pipeline's workers parse it (parseBatch) before the
+// handoff's lock (handoff.go), copying each line; the pipeline's reader
+// reads a file straight into the buffer, where the lines stay with their
+// endings between them (batchReader, pipeline.go); the pipeline's workers parse it (parseBatch) before the
 // owner takes it (Ingester.takeBatch), the live runner's owner parses it
 // as it takes it. Either way every line goes through parseLine and
 // Ingester.account: the rules that make a line a record, a rejection or a

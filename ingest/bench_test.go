@@ -80,3 +80,26 @@ func BenchmarkParseBatch(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(bt.lines)), "ns/line")
 }
+
+// BenchmarkLabeller is a pipeline worker's companion labelling alone, on
+// copies of parsed demo records (the demo's latency buckets).
+func BenchmarkLabeller(b *testing.B) {
+	g := demo.New(1, batchLines)
+	var f parse.JSON
+	recs := make([]*parse.Record, batchLines)
+	for i := range recs {
+		recs[i] = &parse.Record{}
+		if err := f.Parse(g.Append(nil), recs[i]); err != nil {
+			b.Fatal(err)
+		}
+	}
+	lab := companion.Choose(recs[:256], companion.Options{}).Labeller()
+	if lab == nil {
+		b.Fatal("the demo has no companions")
+	}
+	var r parse.Record
+	for i := 0; b.Loop(); i++ {
+		r.CopyFrom(recs[i%len(recs)]) // the same in every run: a baseline
+		lab.Apply(&r)
+	}
+}

@@ -44,6 +44,38 @@ func parallelOK(src parse.Source) bool {
 	return ok && runtime.GOMAXPROCS(0) > 1
 }
 
+// batchReader is the pipeline's reader: it fills batches with the lines
+// of a FileSource, read a block at a time straight into the batch's text
+// (FileSource.NextBlock), in input order.
+type batchReader struct {
+	fs    *parse.FileSource
+	spans []parse.BlockLine
+	room  parse.BlockRoom
+}
+
+// fill reads lines into b, empty, until no more fit: it returns nil when
+// the next line has no place in b, and otherwise what ended it after the
+// lines before (io.EOF, ctx's error, or a fault of an input). A batch takes
+// batchLines lines, or fewer of at most batchBytes of text together (a
+// longer line is a batch of its own).
+func (r *batchReader) fill(ctx context.Context, b *batch) error {
+	r.room = parse.BlockRoom{MaxLines: batchLines, MaxText: batchBytes}
+	for {
+		var (
+			source string
+			full   bool
+			err    error
+		)
+		b.text, r.spans, source, full, err = r.fs.NextBlock(ctx, b.text, r.spans[:0], &r.room)
+		for _, s := range r.spans {
+			b.lines = append(b.lines, batchLine{start: s.Start, end: s.End, num: s.Num, source: source, tooLong: s.TooLong})
+		}
+		if full || err != nil {
+			return err
+		}
+	}
+}
+
 // settled says whether the remaining lines can go to the pipeline.
 func (in *Ingester) settled() bool {
 	return in.started && in.format != nil && parallelFormats[in.format.Name()] && !in.det.perFile &&
@@ -72,31 +104,24 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 	go func() { // reader
 		defer close(order)
 		defer close(work)
-		b := <-free
-		// There are never more batches than the channels hold, so the
-		// sends do not block; the consumer returns every batch to free.
-		send := func() {
-			work <- b
-			order <- b
-			b = <-free
-		}
+		r := batchReader{fs: src.(*parse.FileSource)}
 		for {
-			l, err := src.Next(ctx)
-			if err == nil {
-				if len(b.lines) > 0 && (len(b.lines) == batchLines || len(b.text)+len(l.Text) > batchBytes) {
-					send()
-				}
-				b.add(l, nil)
-				continue
-			}
-			if errors.Is(err, io.EOF) || ctx.Err() != nil {
+			b := <-free
+			// There are never more batches than the channels hold, so the
+			// sends do not block; the consumer returns every batch to free.
+			err := r.fill(ctx, b)
+			switch {
+			case err == nil: // full
+			case errors.Is(err, io.EOF) || ctx.Err() != nil:
 				b.end = err
 				work <- b
 				order <- b
 				return
+			default:
+				b.add(parse.Line{}, err) // a fault, recorded in order
 			}
-			b.add(parse.Line{}, err) // a fault, recorded in order
-			send()
+			work <- b
+			order <- b
 		}
 	}()
 	for range workers {

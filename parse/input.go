@@ -127,12 +127,22 @@ func decompress(br *bufio.Reader, closeFn func() error) (io.ReadCloser, error) {
 
 // Lines splits a stream into lines, numbered from 1, without their line
 // endings (LF or CRLF). A last line without a newline is still a line.
+// Next gives one line at a time; AppendBlock many, in a caller's buffer
+// (lines_block.go). The two may be mixed.
 type Lines struct {
 	r       *bufio.Reader
 	max     int
 	n       int64
 	buf     []byte
 	Partial bool // the last line returned had no newline
+
+	// Left by AppendBlock: bytes read past the block's last line (carry),
+	// and a line over the limit whose start was dropped (skipping).
+	carry    []byte
+	skipping bool
+	pending  error // a read's error that came with data, not yet given
+	// What AppendBlock has taken, to size its reads.
+	blockBytes, blockLines int64
 }
 
 // NewLines reads lines of at most max bytes from r (max <= 0: DefaultMaxLine).
@@ -148,7 +158,18 @@ func NewLines(r io.Reader, max int) *Lines {
 // after every line before it.
 func (l *Lines) Next() ([]byte, int64, error) {
 	l.buf = l.buf[:0]
-	tooLong := false
+	tooLong := l.skipping
+	l.skipping = false
+	if len(l.carry) > 0 || l.pending != nil {
+		// AppendBlock read ahead: those bytes (and the error after them)
+		// come first.
+		rs := []io.Reader{bytes.NewReader(bytes.Clone(l.carry))}
+		if l.pending != nil && !errors.Is(l.pending, io.EOF) {
+			rs = append(rs, &onceErr{l.pending})
+		}
+		l.carry, l.pending = l.carry[:0], nil
+		l.r = bufio.NewReaderSize(io.MultiReader(append(rs, l.r)...), 64<<10)
+	}
 	for {
 		chunk, err := l.r.ReadSlice('\n')
 		if !tooLong {
@@ -194,6 +215,18 @@ func (l *Lines) Next() ([]byte, int64, error) {
 			return nil, l.n, err
 		}
 	}
+}
+
+// onceErr gives its error once, then io.EOF.
+type onceErr struct{ err error }
+
+func (o *onceErr) Read([]byte) (int, error) {
+	err := o.err
+	if err == nil {
+		return 0, io.EOF
+	}
+	o.err = nil
+	return 0, err
 }
 
 func (l *Lines) check(line []byte) error {

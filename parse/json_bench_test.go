@@ -119,3 +119,23 @@ func BenchmarkLines(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.N*benchN)/b.Elapsed().Seconds(), "lines/s")
 }
+
+// BenchmarkTimeFinder reads the demo records' times (RFC 3339, one field)
+// with a settled TimeFinder.
+func BenchmarkTimeFinder(b *testing.B) {
+	benchLines()
+	var j parse.JSON
+	recs := make([]parse.Record, 1000)
+	for i := range recs {
+		if err := j.Parse(benchJSON[i], &recs[i]); err != nil {
+			b.Fatal(err)
+		}
+	}
+	var tf parse.TimeFinder
+	if _, ok := tf.Find(&recs[0]); !ok {
+		b.Fatal("no time")
+	}
+	for i := 0; b.Loop(); i++ {
+		tf.Find(&recs[i%len(recs)])
+	}
+}

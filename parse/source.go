@@ -192,6 +192,59 @@ func (fs *FileSource) Next(ctx context.Context) (Line, error) {
 	}
 }
 
+// NextBlock is Next a block of lines at a time (Lines.AppendBlock): it
+// appends lines of one input to block and their places to lines, as room
+// allows, and returns the input's name. full says that it stopped at a
+// line room had no place for. The lines appended come before err: io.EOF
+// at the end of the last input, ctx.Err(), or a fault of the input as
+// Next gives it. At the end of an input it returns its lines with a nil
+// error; the next call goes on with the next input.
+func (fs *FileSource) NextBlock(ctx context.Context, block []byte, lines []BlockLine, room *BlockRoom) (_ []byte, _ []BlockLine, source string, full bool, err error) {
+	fs.ctx = ctx
+	for {
+		if err := ctx.Err(); err != nil {
+			return block, lines, fs.name, false, err
+		}
+		if fs.lines == nil {
+			if fs.idx >= len(fs.paths) {
+				fs.setState(StateDone)
+				return block, lines, fs.name, false, io.EOF
+			}
+			p := fs.paths[fs.idx]
+			fs.idx++
+			if err := fs.open(ctx, p); err != nil {
+				if ctx.Err() != nil {
+					return block, lines, fs.name, false, ctx.Err()
+				}
+				fs.event("fault", p+": "+err.Error())
+				return block, lines, p, false, &SourceError{Source: p, Err: err}
+			}
+		}
+		n0 := len(lines)
+		block, lines, full, err = fs.lines.AppendBlock(block, lines, room)
+		fs.addLines(len(lines) - n0)
+		name := fs.name
+		switch {
+		case err == nil:
+			return block, lines, name, full, nil
+		case errors.Is(err, io.EOF):
+			fs.closeCur()
+			if len(lines) > n0 {
+				return block, lines, name, false, nil
+			}
+		case ctx.Err() != nil:
+			fs.closeCur()
+			return block, lines, name, false, ctx.Err()
+		default:
+			off := fs.count.n - int64(fs.buf.Buffered())
+			err = explainRead(err)
+			fs.event("fault", (&SourceError{Source: name, Err: err, Offset: off}).Error())
+			fs.closeCur()
+			return block, lines, name, false, &SourceError{Source: name, Err: err, Offset: off}
+		}
+	}
+}
+
 func (fs *FileSource) open(ctx context.Context, p string) error {
 	var raw io.ReadCloser
 	if p == "-" {
@@ -236,6 +289,15 @@ func (fs *FileSource) closeCur() {
 func (fs *FileSource) addLine() {
 	fs.mu.Lock()
 	fs.status.Lines++
+	fs.mu.Unlock()
+}
+
+func (fs *FileSource) addLines(n int) {
+	if n == 0 {
+		return
+	}
+	fs.mu.Lock()
+	fs.status.Lines += int64(n)
 	fs.mu.Unlock()
 }
 

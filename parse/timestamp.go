@@ -55,6 +55,7 @@ type TimeFinder struct {
 	layout *timeLayout
 	tried  int
 	ref    time.Time
+	minute minuteCache // for the rfc3339 layout
 }
 
 // timeLayout is one timestamp format.
@@ -71,13 +72,17 @@ type timeLayout struct {
 
 // timeLayouts are tried in order on each candidate value.
 var timeLayouts = []*timeLayout{
-	{name: "rfc3339", strong: true, parse: parseISO, fast: rfc3339Fast},
+	rfc3339Layout,
 	{name: "access", strong: true, parse: parseAccess},
 	{name: "syslog", strong: true, parse: parseSyslog},
 	// The forms line headers use (header_time.go), under time keys only.
 	{name: "header", parse: parseHeadTime},
 	{name: "epoch", parse: func(s string, _ time.Time) (int64, bool) { return parseEpoch(s) }},
 }
+
+// rfc3339Layout is read by a TimeFinder through its minuteCache, the
+// same reads as its fast.
+var rfc3339Layout = &timeLayout{name: "rfc3339", strong: true, parse: parseISO, fast: rfc3339Fast}
 
 // isoLayouts are the ISO 8601 shapes parseISO accepts; time.Parse accepts a
 // fractional second after the seconds even where the layout has none.
@@ -191,7 +196,11 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 		if !ok {
 			return 0, false
 		}
-		if tf.layout.fast != nil {
+		if tf.layout == rfc3339Layout {
+			if t, done := tf.minute.read(v); done {
+				return t, true
+			}
+		} else if tf.layout.fast != nil {
 			if t, done := tf.layout.fast(v); done {
 				return t, true
 			}

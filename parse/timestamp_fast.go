@@ -1,5 +1,7 @@
 package parse
 
+import "encoding/binary"
+
 // rfc3339Fast reads the RFC 3339 timestamps most JSON logs carry
 // ("2026-03-14T06:00:00.000500Z", "...+02:00") straight from the record's
 // bytes. It is written by hand because time.Parse takes a string, so each
@@ -9,7 +11,18 @@ package parse
 // instant (TestRFC3339FastAgrees, FuzzRFC3339Fast); done is false for
 // anything else, which then goes to the "rfc3339" layout's parse as before.
 func rfc3339Fast(b []byte) (ns int64, done bool) {
-	if len(b) < 20 || b[4] != '-' || b[7] != '-' || b[10] != 'T' || b[13] != ':' || b[16] != ':' {
+	base, ok := rfc3339Minute(b)
+	if !ok {
+		return 0, false
+	}
+	return rfc3339Rest(b, base)
+}
+
+// rfc3339Minute reads b's first 16 bytes, "2026-03-14T06:00", as seconds
+// since 1970 (before the zone's offset), when b is long enough to be read
+// by rfc3339Fast.
+func rfc3339Minute(b []byte) (int64, bool) {
+	if len(b) < 20 || b[4] != '-' || b[7] != '-' || b[10] != 'T' || b[13] != ':' {
 		return 0, false
 	}
 	y1, ok1 := two(b[0], b[1])
@@ -18,11 +31,23 @@ func rfc3339Fast(b []byte) (ns int64, done bool) {
 	day, ok4 := two(b[8], b[9])
 	hour, ok5 := two(b[11], b[12])
 	minute, ok6 := two(b[14], b[15])
-	sec, ok7 := two(b[17], b[18])
 	year := y1*100 + y2
 	// Years whose nanoseconds fit an int64 (UnixNano is undefined past them).
-	if !(ok1 && ok2 && ok3 && ok4 && ok5 && ok6 && ok7) || year < 1678 || year > 2261 ||
-		month < 1 || month > 12 || day < 1 || day > daysInMonth(month, year) || hour > 23 || minute > 59 || sec > 59 {
+	if !(ok1 && ok2 && ok3 && ok4 && ok5 && ok6) || year < 1678 || year > 2261 ||
+		month < 1 || month > 12 || day < 1 || day > daysInMonth(month, year) || hour > 23 || minute > 59 {
+		return 0, false
+	}
+	return daysFromCivil(year, month, day)*86400 + int64(hour*3600+minute*60), true
+}
+
+// rfc3339Rest reads the rest of b (":05.000500Z") after its minute, whose
+// seconds are base.
+func rfc3339Rest(b []byte, base int64) (ns int64, done bool) {
+	if len(b) < 20 || b[16] != ':' {
+		return 0, false
+	}
+	sec, ok := two(b[17], b[18])
+	if !ok || sec > 59 {
 		return 0, false
 	}
 	rest := b[19:]
@@ -55,8 +80,34 @@ func rfc3339Fast(b []byte) (ns int64, done bool) {
 	default:
 		return 0, false
 	}
-	s := daysFromCivil(year, month, day)*86400 + int64(hour*3600+minute*60+sec-offset)
+	s := base + int64(sec-offset)
 	return s*1e9 + nsec, true
+}
+
+// minuteCache remembers the minute of the last time rfc3339Fast read: a
+// stream's times mostly share it, and then only the seconds, fraction and
+// zone are read (the minute's five numbers and its date were a third of
+// the fast path's time on the demo's lines). Its reads are rfc3339Fast's
+// (TestMinuteCacheAgrees).
+type minuteCache struct {
+	w0, w1 uint64 // the value's first 16 bytes
+	base   int64  // their seconds (rfc3339Minute)
+	ok     bool
+}
+
+func (c *minuteCache) read(b []byte) (int64, bool) {
+	if len(b) < 20 {
+		return 0, false
+	}
+	w0, w1 := binary.LittleEndian.Uint64(b), binary.LittleEndian.Uint64(b[8:])
+	if !c.ok || w0 != c.w0 || w1 != c.w1 {
+		base, ok := rfc3339Minute(b)
+		if !ok {
+			return 0, false
+		}
+		c.w0, c.w1, c.base, c.ok = w0, w1, base, true
+	}
+	return rfc3339Rest(b, c.base)
 }
 
 // two reads two decimal digits.

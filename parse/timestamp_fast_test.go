@@ -90,3 +90,31 @@ func FuzzRFC3339Fast(f *testing.F) {
 	f.Add("1996-12-19T16:39:57-08:00")
 	f.Fuzz(func(t *testing.T, s string) { checkRFC3339Fast(t, s) })
 }
+
+// TestMinuteCacheAgrees: a TimeFinder's minute cache reads a stream of
+// times (most sharing their minute with the one before, some damaged in
+// the minute or after it) as rfc3339Fast reads each alone, and so as
+// time.Parse does (checkRFC3339Fast).
+func TestMinuteCacheAgrees(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	var c minuteCache
+	at := time.Date(2026, 2, 28, 23, 58, 0, 0, time.UTC)
+	for n := 0; n < 100000; n++ {
+		at = at.Add(time.Duration(r.IntN(3000)) * time.Millisecond)
+		s := at.Format("2006-01-02T15:04:05.000000Z07:00")
+		switch r.IntN(12) {
+		case 0:
+			s = s[:r.IntN(len(s))] + string("0:-T.Z+9x"[r.IntN(9)]) + s[r.IntN(len(s)):]
+		case 1:
+			s = s[:len(s)-1] + "+01:30"
+		case 2:
+			s = s[:16] + ":60Z"
+		}
+		got, ok := c.read([]byte(s))
+		want, wantOK := rfc3339Fast([]byte(s))
+		if ok != wantOK || got != want {
+			t.Fatalf("%q: cached %d %v, alone %d %v", s, got, ok, want, wantOK)
+		}
+		checkRFC3339Fast(t, s)
+	}
+}
