@@ -114,6 +114,9 @@ func parseBatch(b *batch, f parse.Format, times *parse.TimeFinder, lab *companio
 				l.from = rec.Len()
 				lab.Apply(rec)
 			}
+			// Compared here, off the owner; takeBatch keeps it only when
+			// the line before went to the model too.
+			rec.KeysRepeat = i > 0 && b.lines[i-1].err == nil && b.lines[i-1].kind == lineRecord && rec.SameKeys(&b.recs[i-1])
 		}
 	}
 	b.parsed, b.labelled = true, lab != nil
@@ -130,6 +133,7 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 	// model with the parsed ones at each flush.
 	in.holding = true
 	defer func() { in.flushRecords(); in.holding = false }()
+	held := -1 // the last line whose record was held
 	for i := range b.lines {
 		if between != nil && i%chunkLines == chunkLines-1 {
 			in.flushRecords()
@@ -172,6 +176,11 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 		if !in.admit(rec, l.num, t, l.source) {
 			continue // left out by --where, --since or --until
 		}
+		// The worker compared the keys with the line before's; they are
+		// the keys of the record before in the model only if that one
+		// was held too, and as read only if no redaction renamed them.
+		rec.KeysRepeat = rec.KeysRepeat && held == i-1 && in.redact == nil
+		held = i
 		in.held.recs = append(in.held.recs, rec)
 		in.held.lines = append(in.held.lines, l.num)
 		in.held.times = append(in.held.times, t)

@@ -95,7 +95,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	nShapes := 0
 	values := 0
 	for r, rec := range recs {
-		if r > 0 && rec.SameKeys(recs[r-1]) {
+		if r > 0 && (rec.KeysRepeat || rec.SameKeys(recs[r-1])) {
 			b.shape = append(b.shape, b.shape[r-1])
 			values += m.shapeValues
 			continue

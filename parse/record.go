@@ -16,6 +16,11 @@ type Record struct {
 	// DupKeys: the line gave a key twice at one level; the last value is
 	// kept (see parse/json_dup.go).
 	DupKeys bool
+	// KeysRepeat: the record's keys are, in order, those of the record
+	// handed on just before it. Set by a reader that compared them (the
+	// pipeline's workers, with SameKeys), so that the model need not;
+	// false when not known.
+	KeysRepeat bool
 }
 
 // Reset empties the record, keeping its buffers for reuse.
@@ -23,6 +28,7 @@ func (r *Record) Reset() {
 	r.buf = r.buf[:0]
 	r.spans = r.spans[:0]
 	r.DupKeys = false
+	r.KeysRepeat = false
 }
 
 // Len is the number of fields in the record.
@@ -83,6 +89,7 @@ func (r *Record) CopyFrom(o *Record) {
 	r.buf = append(r.buf[:0], o.buf...)
 	r.spans = append(r.spans[:0], o.spans...)
 	r.DupKeys = o.DupKeys
+	r.KeysRepeat = o.KeysRepeat
 }
 
 // AddKV appends a field whose key is a string, copying both; it spares
