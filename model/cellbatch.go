@@ -70,22 +70,29 @@ const countBlock = 16
 // uncount takes one record off cell (as[r], bs[r]) for each r.
 func (m *cellMap) uncount(as, bs []uint32) {
 	m.stale = true
+	bs = bs[:len(as)]
+	// The matrix's fields in locals, as in count (dec never grows it, but
+	// may leave it for a hash map: they are reloaded after it).
+	dense, dw, dh, n := m.dense, m.dw, m.dh, m.len
 	for r, x := range as {
 		a, b := uint64(x), uint64(bs[r])
-		if a < m.dh && b < m.dw {
-			j := a*m.dw + b
-			c := m.dense[j]
+		if a < dh && b < dw {
+			j := a*dw + b
+			c := dense[j]
 			if c == 0 {
 				panic("model: cellMap.uncount of an empty cell")
 			}
 			if c == 1 {
-				m.len--
+				n--
 			}
-			m.dense[j] = c - 1
+			dense[j] = c - 1
 			continue
 		}
+		m.len = n
 		m.dec(a<<32 | b)
+		dense, dw, dh, n = m.dense, m.dw, m.dh, m.len
 	}
+	m.len = n
 }
 
 // sum is S = Σ clogc(count) over the cells, recomputed if stale.

@@ -26,12 +26,14 @@ func BenchmarkCountHashed(b *testing.B) {
 	}
 }
 
-// TestCountMatchesInc: count over segments leaves the table inc leaves,
-// in both modes (a matrix, then a hash map past its bounds).
+// TestCountMatchesInc: count and uncount over segments leave the table
+// inc and dec leave, in both modes (a matrix, then a hash map past its
+// bounds).
 func TestCountMatchesInc(t *testing.T) {
 	r := rand.New(rand.NewPCG(9, 10))
 	for _, side := range []int{8, 3000} {
 		batch, single := newCellMap(), newCellMap()
+		var segs [][2][]uint32
 		for seg := 0; seg < 40; seg++ {
 			n := 1 + r.IntN(3000)
 			as, bs := make([]uint32, n), make([]uint32, n)
@@ -40,6 +42,15 @@ func TestCountMatchesInc(t *testing.T) {
 				single.inc(uint64(as[i])<<32 | uint64(bs[i]))
 			}
 			batch.count(as, bs)
+			segs = append(segs, [2][]uint32{as, bs})
+			if seg%3 == 2 { // the oldest segment leaves
+				old := segs[0]
+				segs = segs[1:]
+				for i := range old[0] {
+					single.dec(uint64(old[0][i])<<32 | uint64(old[1][i]))
+				}
+				batch.uncount(old[0], old[1])
+			}
 		}
 		if batch.len != single.len || batch.sum() != single.sum() {
 			t.Fatalf("side %d: count: %d cells, S %d; inc: %d cells, S %d", side, batch.len, batch.sum(), single.len, single.sum())
