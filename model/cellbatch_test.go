@@ -31,14 +31,17 @@ func BenchmarkCountHashed(b *testing.B) {
 // bounds).
 func TestCountMatchesInc(t *testing.T) {
 	r := rand.New(rand.NewPCG(9, 10))
-	for _, side := range []int{8, 3000} {
+	// Sides of a and b, and the longest segment: a matrix of many records
+	// a cell; a matrix whose cells empty as segments leave; a hash map.
+	for _, c := range [][3]int{{8, 64, 3000}, {30, 30, 500}, {3000, 3000 * 3000, 3000}} {
+		side := c[0]
 		batch, single := newCellMap(), newCellMap()
 		var segs [][2][]uint32
 		for seg := 0; seg < 40; seg++ {
-			n := 1 + r.IntN(3000)
+			n := 1 + r.IntN(c[2])
 			as, bs := make([]uint32, n), make([]uint32, n)
 			for i := range as {
-				as[i], bs[i] = uint32(r.IntN(side)), uint32(r.IntN(side*side))
+				as[i], bs[i] = uint32(r.IntN(side)), uint32(r.IntN(c[1]))
 				single.inc(uint64(as[i])<<32 | uint64(bs[i]))
 			}
 			batch.count(as, bs)
