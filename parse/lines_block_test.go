@@ -59,18 +59,25 @@ func (r *pieceReader) Read(p []byte) (int, error) {
 func readAllNext(l *Lines) []string {
 	var got []string
 	for {
-		text, num, err := l.Next()
-		switch {
-		case err == nil:
-			got = append(got, fmt.Sprintf("#%d:%q", num, text))
-		case errors.Is(err, ErrLineTooLong):
-			got = append(got, fmt.Sprintf("#%d:TOO-LONG", num))
-		case errors.Is(err, io.EOF):
-			return append(got, "EOF")
-		default:
-			return append(got, "FAULT: "+err.Error())
+		d, end := describeNext(l.Next())
+		if got = append(got, d); end {
+			return got
 		}
 	}
+}
+
+// describeNext is one result of Next as readAllNext lists it, and whether
+// it ends the reading.
+func describeNext(text []byte, num int64, err error) (string, bool) {
+	switch {
+	case err == nil:
+		return fmt.Sprintf("#%d:%q", num, text), false
+	case errors.Is(err, ErrLineTooLong):
+		return fmt.Sprintf("#%d:TOO-LONG", num), false
+	case errors.Is(err, io.EOF):
+		return "EOF", true
+	}
+	return "FAULT: " + err.Error(), true
 }
 
 // readAllBlocks lists the same from AppendBlock, with rooms of random size
@@ -81,16 +88,9 @@ func readAllBlocks(l *Lines, rnd *rand.Rand) []string {
 	var lines []BlockLine
 	for {
 		if rnd.IntN(8) == 0 {
-			text, num, err := l.Next()
-			switch {
-			case err == nil:
-				got = append(got, fmt.Sprintf("#%d:%q", num, text))
-			case errors.Is(err, ErrLineTooLong):
-				got = append(got, fmt.Sprintf("#%d:TOO-LONG", num))
-			case errors.Is(err, io.EOF):
-				return append(got, "EOF")
-			default:
-				return append(got, "FAULT: "+err.Error())
+			d, end := describeNext(l.Next())
+			if got = append(got, d); end {
+				return got
 			}
 			continue
 		}
