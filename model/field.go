@@ -132,7 +132,7 @@ func (f *field) add(v []byte, maxDistinct int) uint32 {
 	f.s += f.up(int64(c), id)
 	f.counts[id] = c + 1
 	f.present++
-	f.valueBytes += int64(len(f.text[id]))
+	f.valueBytes += int64(len(v)) // text[id]'s length: the value found is v
 	return id
 }
 
