@@ -156,11 +156,22 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 		text := b.text[l.start:l.end]
 		in.enter(l.source)
 		in.input.Lines++
+		in.lastNum = l.num
 		in.observeLine(l.num, l.source)
 		in.keepRaw(text, l.num, l.source, l.tooLong)
 		if !in.account(l.kind, l.reason, l.num, l.source, text) {
+			// As read does: a run of lines the format cannot read may
+			// change it, and then the rest are read line by line.
+			if l.kind == lineRejected && l.reason != "blank line" && !l.tooLong {
+				format := in.format
+				in.rejected(text)
+				if in.format != format {
+					b.parsed = false
+				}
+			}
 			continue
 		}
+		in.accepted()
 		t := l.t
 		if !l.hasTime {
 			t = in.cfg.Clock().UnixNano()

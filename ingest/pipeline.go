@@ -5,6 +5,7 @@ import (
 	"errors"
 	"io"
 	"runtime"
+	"sync/atomic"
 
 	"bitsift/parse"
 )
@@ -124,6 +125,10 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 			order <- b
 		}
 	}()
+	// format is the one the workers parse with; reformatted tells them to
+	// stop once the owner has taken another.
+	format := in.format
+	var reformatted atomic.Bool
 	for range workers {
 		f, err := parse.ByName(in.format.Name())
 		if err != nil {
@@ -136,7 +141,9 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 		lab := in.comp.Labeller()
 		go func() {
 			for b := range work {
-				parseBatch(b, f, &times, lab)
+				if !reformatted.Load() {
+					parseBatch(b, f, &times, lab)
+				}
 				b.ready <- struct{}{}
 			}
 		}()
@@ -145,6 +152,13 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 	var first, end error
 	for b := range order {
 		<-b.ready
+		if in.format != format {
+			// The lines changed shape and were detected again (takeBatch,
+			// Ingester.rejected): what the workers parsed in the old
+			// format is read again, line by line, in the new one.
+			reformatted.Store(true)
+			b.parsed = false
+		}
 		if err := in.takeBatch(b, nil); first == nil {
 			first = err
 		}

@@ -239,3 +239,48 @@ func TestPipelineKeysAfterLeftOut(t *testing.T) {
 	}
 	sameFigures(t, got, want)
 }
+
+// TestPipelineRedetects: a file whose lines change shape part way (JSON,
+// then logfmt) is detected again after a run of rejected lines, as the
+// line-by-line read does: the same snapshot, accounting, formats and
+// warning, the logfmt lines read as records.
+func TestPipelineRedetects(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	var data bytes.Buffer
+	for i := 0; i < 12000; i++ {
+		if i < 5000 {
+			fmt.Fprintf(&data, `{"berth":"b%d","crane":"c%d","tide":"%d"}`+"\n", i%9, i%4, i%13)
+		} else {
+			fmt.Fprintf(&data, "berth=b%d crane=c%d tide=%d\n", i%9, i%4, i%13)
+		}
+	}
+	path := filepath.Join(t.TempDir(), "quay.log")
+	os.WriteFile(path, data.Bytes(), 0o644)
+	run := func(parallel bool) (*model.Snapshot, []string) {
+		clock := time.Unix(1e9, 0)
+		in, err := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}},
+			Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }})
+		if err != nil {
+			t.Fatal(err)
+		}
+		in.AddSource("quay")
+		var src parse.Source = parse.NewFileSource([]string{path}, 0)
+		if !parallel {
+			src = seqSource{src}
+		}
+		if err := in.ReadSource(context.Background(), src); err != nil {
+			t.Fatal(err)
+		}
+		return in.Snapshot(model.SnapshotOptions{}), in.Warnings()
+	}
+	got, gotWarn := run(true)
+	want, wantWarn := run(false)
+	got.Taken, want.Taken = time.Time{}, time.Time{}
+	if want.Input.Format != "json+logfmt" || want.Records != 12000-redetectRun || len(wantWarn) != 1 {
+		t.Errorf("reference: format %q, %d records, warnings %q: the test input is not what it should be", want.Input.Format, want.Records, wantWarn)
+	}
+	if !reflect.DeepEqual(gotWarn, wantWarn) {
+		t.Errorf("warnings %q, want %q", gotWarn, wantWarn)
+	}
+	sameFigures(t, got, want)
+}
