@@ -356,7 +356,7 @@ func (m *Model) top(f *field, k int) []ValueCount {
 		return out
 	}
 	for id, c := range f.counts {
-		if c == 0 || (len(out) >= k && int(c) <= minKept) {
+		if c == 0 || (len(out) >= k && int(c) < minKept) { // a tie with the last kept may sort before it
 			continue
 		}
 		out = append(out, ValueCount{Value: f.text[id], Count: int(c)})
