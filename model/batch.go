@@ -158,6 +158,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	}
 	ev := b.evict[:e*w]
 	old := min(e, nOld) // evicted records from before the segment
+	gone0 := m.st.gone  // the window's first record is the gone0-th pushed
 	for f := 0; f < w; f++ {
 		m.st.column(f, 0, old, ev[f*e:f*e+old])
 	}
@@ -170,7 +171,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		gone := 0
 		for r := 0; r < k; r++ {
 			if i := b.pos[int(b.shape[r])*w+f]; i >= 0 {
-				ids[r] = fl.addAt(recs[r].Value(int(i)), maxD, nOld+r)
+				ids[r] = fl.addAt(recs[r].Value(int(i)), maxD, gone0+nOld+r)
 			}
 			for ; gone < b.after[r]; gone++ {
 				if gone >= old {
@@ -178,6 +179,8 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 				}
 				if id := col[gone]; id != absent {
 					fl.remove(id)
+				} else if fl.flat != nil {
+					fl.evictFlat(gone0 + gone)
 				}
 			}
 		}

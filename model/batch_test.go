@@ -311,6 +311,106 @@ func TestHeadlessIdentifiersMatchTable(t *testing.T) {
 	}
 }
 
+// TestHeadlessWindowIdentifiersMatchTable: in a window of the last 2,500
+// records, a headless model lists identifiers in a ring (flatids.go).
+// Fed the random streams with a ticket number on most records (unique
+// throughout: the list is settled again each time the bound from the last
+// settle runs out) and the manifest unique for its first 6,000 records
+// (then repeating, so that it goes back to a table and leaves the rule),
+// by AddBatch and by Add, its snapshots and its rebuild must equal those of
+// the same model keeping tables, at random points; so must the entropy
+// history of every field that was never hashed (the only ones read).
+func TestHeadlessWindowIdentifiersMatchTable(t *testing.T) {
+	keys := []string{"level", "berth", "crane", "tide", "manifest", "weight", "derived", "ticket"}
+	w := Window{Kind: WindowRecords, Records: 2500}
+	for seed := uint64(1); seed <= 3; seed++ {
+		r := rand.New(rand.NewPCG(seed, 79))
+		stream := randomStream(r, 15000)
+		for i := range stream {
+			stream[i].kv["manifest"] = "m" + strconv.Itoa(i)
+			if i >= 6000 {
+				stream[i].kv["manifest"] = "m" + strconv.Itoa(r.IntN(5))
+			}
+			if i%9 != 4 && (i < 13000 || i >= 13800) { // and a stretch without
+				stream[i].kv["ticket"] = "t" + strconv.Itoa(i)
+			}
+			if v, ok := stream[i].kv["ticket"]; ok && i%11 == 0 { // some longer than a list's length byte holds
+				stream[i].kv["ticket"] = v + strings.Repeat("x", 250+i%20)
+			}
+		}
+		table := New(Options{Window: w})
+		batched := New(Options{Window: w, Headless: true})
+		single := New(Options{Window: w, Headless: true})
+		listed := map[string]bool{}
+		left := false
+		for i := 0; i < len(stream); {
+			k := min(len(stream)-i, 1+r.IntN(3000))
+			if r.IntN(4) == 0 {
+				k = min(len(stream)-i, 1+r.IntN(5))
+			}
+			recs, lines, times := segmentOf(stream, keys, i, i+k, single)
+			table.AddBatch(recs, lines, times)
+			batched.AddBatch(recs, lines, times)
+			i += k
+			for _, name := range []string{"manifest", "ticket"} {
+				if f := batched.fields[batched.byName[name]]; f.flat != nil {
+					listed[name] = true
+				} else if name == "manifest" && listed[name] && !f.ident {
+					left = true
+				}
+			}
+			if r.IntN(5) > 0 && i < len(stream) {
+				continue
+			}
+			name := "seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
+			want := table.Snapshot(SnapshotOptions{})
+			for _, m := range []*Model{batched, single} {
+				got := m.Snapshot(SnapshotOptions{})
+				got.Taken, want.Taken = time.Time{}, time.Time{}
+				if err := sameSnapshot(got, want); err != "" {
+					t.Fatalf("%s: the headless snapshot differs from the table's: %s", name, err)
+				}
+			}
+		}
+		if !listed["manifest"] || !listed["ticket"] || !left {
+			t.Fatalf("seed %d: listed %v, the manifest left the rule %v: the test no longer covers both", seed, listed, left)
+		}
+		if f := batched.fields[batched.byName["ticket"]]; f.flat == nil {
+			t.Fatalf("seed %d: the ticket went back to a table", seed)
+		}
+		// The timeline finds where the ticket is missing from its ring.
+		tw := table.Timeline(table.Snapshot(SnapshotOptions{}), []string{"a.log"})
+		if tg := batched.Timeline(batched.Snapshot(SnapshotOptions{}), []string{"a.log"}); !reflect.DeepEqual(tg, tw) {
+			t.Fatalf("seed %d: timeline:\n got %+v\nwant %+v", seed, tg, tw)
+		}
+		if !slices.ContainsFunc(tw, func(e TimelineEntry) bool { return e.Field == "ticket" && e.Kind == TimelineGone }) {
+			t.Fatalf("seed %d: the timeline %+v has no stretch without the ticket: the test no longer covers it", seed, tw)
+		}
+		for _, m := range []*Model{batched, single} {
+			for name, h := range table.base.hist {
+				if f := table.fields[table.byName[name]]; !f.hashed() && !reflect.DeepEqual(m.base.hist[name], h) {
+					t.Fatalf("seed %d: entropy history of %s differs:\n got %v\nwant %v", seed, name, m.base.hist[name], h)
+				}
+			}
+			// A rebuild replays a hashed field's values as stand-ins made
+			// from their ids (replayValue), which in a window depend on
+			// the records before it: the ring's ids are made from the
+			// window alone. Their top values and lengths are left out.
+			got, want := m.Rebuild().Snapshot(SnapshotOptions{}), table.Rebuild().Snapshot(SnapshotOptions{})
+			got.Taken, want.Taken = time.Time{}, time.Time{}
+			for i := range want.Fields {
+				if table.fields[table.byName[want.Fields[i].Name]].hashed() {
+					got.Fields[i].Top, want.Fields[i].Top = nil, nil
+					got.Fields[i].BytesPerRecord, want.Fields[i].BytesPerRecord = 0, 0
+				}
+			}
+			if err := sameSnapshot(got, want); err != "" {
+				t.Fatalf("seed %d: rebuilt, the headless model differs: %s", seed, err)
+			}
+		}
+	}
+}
+
 // segmentOf is stream[i:j] as AddBatch takes it (records, line numbers
 // j+1, times), each record also added one by one to each of one.
 func segmentOf(stream []plainRec, keys []string, i, j int, one ...*Model) (recs []*parse.Record, lines, times []int64) {

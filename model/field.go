@@ -88,11 +88,12 @@ func newField(name string, index int) *field {
 	}
 }
 
-// addAt is add for the record that will be the store's r-th: a flat
-// field lists it there, its id made later (addAt returns absent).
-func (f *field) addAt(v []byte, maxDistinct int, r int) uint32 {
+// addAt is add for the record that will be the q-th pushed into the
+// store: a flat field lists it so, its id made later (addAt returns
+// absent).
+func (f *field) addAt(v []byte, maxDistinct int, q int) uint32 {
 	if f.flat != nil {
-		return f.addFlat(v, r)
+		return f.addFlat(v, q)
 	}
 	return f.add(v, maxDistinct)
 }

@@ -7,31 +7,42 @@ import (
 
 // Identifiers as a list of hashes. A headless run (Options.Headless: a
 // report or a plan, which take one snapshot at the end) over the whole
-// stream (WindowAll, nothing ever leaves) keeps a hashed identifier's
-// values as one 64-bit hash per record, in record order, instead of a hash
-// table of its distinct values: appending costs nothing like a probe into a
-// table of a million entries (a cache miss each, and the table's doublings),
-// and the list costs 9 bytes a record against about 36. The exact figures
-// (distinct values, Σ c·log c) come from sorting a copy of the list when a
-// snapshot asks (settle).
+// stream (WindowAll, nothing ever leaves) or a window of the last N records
+// keeps a hashed identifier's values as one 64-bit hash per record, in
+// record order, instead of a hash table of its distinct values: appending
+// costs nothing like a probe into a table of a million entries (a cache
+// miss each, and the table's doublings), a record leaving a window nothing
+// like taking its value out of the table, and the list costs 9 bytes a
+// record against about 36. The exact figures (distinct values, Σ c·log c)
+// come from sorting a copy of the window's part of the list when a
+// snapshot asks (settle). Records are placed by their sequence number
+// (store.gone + their store index): over the whole stream the list holds
+// them all; in a window it is a ring of a little more than the window,
+// where a record's slot is taken by one that many records later.
 //
 // The identifier rule still sees exact counts. It needs them to decide that
 // a field stops being an identifier (its share of distinct values falls
-// below identLeave); distinct values never decrease in a window that keeps
-// everything, so the count of the last settle is a lower bound, and only
-// when that bound no longer proves the share above identLeave is the list
-// settled again, exactly. A field whose exact share is then under
-// flatLeave goes back to the table (unflatten), as does one that could
-// reach MaxDistinct (past which values overflow, a decision made value by
-// value), and every field before anything reads ids from the store: a
-// flat field's store column is empty, its ids being made by unflatten.
-// A settle that keeps a field listed finds a share of at least flatLeave,
-// so the list grows by a factor of flatLeave/identLeave (1.43) or more
-// before the next: the sorts of a whole run cost a few times the last.
+// below identLeave). f.distinct is kept a lower bound between settles: new
+// records never lower the number of distinct values, and a record leaving
+// a window lowers it by one at most, so each one that had the field takes
+// one off. Only when that bound no longer proves the share above
+// identLeave is the list settled again, exactly. A field whose exact share
+// is then under flatLeave goes back to the table (unflatten), as does one
+// that could reach MaxDistinct (past which values overflow, a decision
+// made value by value), and every field before anything reads ids from the
+// store: a flat field's store column is empty, its ids being made by
+// unflatten. A settle that keeps a field listed finds a share of at least
+// flatLeave, so over the whole stream the list grows by a factor of
+// flatLeave/identLeave (1.43) or more before the next: the sorts of a
+// whole run cost a few times the last. In a window of N records of unique
+// values the bound reaches identLeave after about (1 − identLeave)·N
+// records: a settle of the window every 0.65 N records.
 //
 // Entropy history notes (noteEntropies) taken while a field is flat are
-// placeholders, filled by unflatten, which replays the list in order: an
-// identifier's history is read only once it has stopped being one.
+// placeholders, filled by unflatten over the whole stream, which replays
+// the list in order, and left as they are in a window (the records before
+// it are gone). Neither is read: a field's history is read only for its
+// shift against a baseline, which no hashed field has (fieldShift).
 
 // flatEnter and flatLeave bound the share of distinct values of a flat
 // identifier: it becomes flat at a reclassification with at least
@@ -48,16 +59,21 @@ const (
 )
 
 // flatIDs is a flat identifier's list: the hash and length of the value of
-// store record r, or 0 when the record lacks the field. Chunks never move,
-// so the list grows without copying. A length takes a byte; those of 255
-// and more are in long (a stand-in made by unflatten for a replay keeps
-// its value's length, see replayValue).
+// the record of sequence number q, or 0 when the record lacks the field,
+// at slot q (over the whole stream) or q mod ring (in a window). Chunks
+// never move, so the list grows without copying. A length takes a byte;
+// those of 255 and more are in long, by slot (a stand-in made by unflatten
+// for a replay keeps its value's length, see replayValue).
 type flatIDs struct {
 	h    [][]uint64
 	l    [][]uint8
 	long map[int]uint32
-	n    int // records listed (later ones lack the field)
-	// settled: f.distinct and f.s are exact for the first settled records.
+	n    int // one past the last record listed (later ones lack the field)
+	// ring is the number of slots of a window's list (0: the whole
+	// stream's).
+	ring int
+	// settled: f.distinct and f.s were made exact when settled records
+	// had been pushed (store.pushed).
 	settled int
 	// notes are the store sizes at which noteEntropies left a NaN in the
 	// field's history, oldest first (at most historyLen).
@@ -74,44 +90,94 @@ func flatHash(h uint64) uint64 {
 	return h
 }
 
-// put sets record r's hash and length; records between the last listed and
-// r lack the field.
-func (fl *flatIDs) put(r int, h uint64, l int) {
-	for r>>flatChunkBits >= len(fl.h) {
+// slot is where record q is listed.
+func (fl *flatIDs) slot(q int) int {
+	if fl.ring > 0 {
+		return q % fl.ring
+	}
+	return q
+}
+
+// put sets record q's hash and length; records between the last listed and
+// q lack the field (in a ring, their slots are cleared of older records).
+func (fl *flatIDs) put(q int, h uint64, l int) {
+	if fl.ring > 0 {
+		for p := max(fl.n, q-fl.ring); p < q; p++ {
+			fl.set(fl.slot(p), 0, 0)
+		}
+	}
+	fl.set(fl.slot(q), h, l)
+	fl.n = max(fl.n, q+1)
+}
+
+func (fl *flatIDs) set(s int, h uint64, l int) {
+	for s>>flatChunkBits >= len(fl.h) {
 		fl.h = append(fl.h, make([]uint64, 1<<flatChunkBits))
 		fl.l = append(fl.l, make([]uint8, 1<<flatChunkBits))
 	}
-	fl.h[r>>flatChunkBits][r&flatChunkMask] = h
+	fl.h[s>>flatChunkBits][s&flatChunkMask] = h
 	if l >= 255 {
 		if fl.long == nil {
 			fl.long = map[int]uint32{}
 		}
-		fl.long[r] = uint32(l)
+		fl.long[s] = uint32(l)
 		l = 255
 	}
-	fl.l[r>>flatChunkBits][r&flatChunkMask] = uint8(l)
-	fl.n = max(fl.n, r+1)
+	fl.l[s>>flatChunkBits][s&flatChunkMask] = uint8(l)
 }
 
-func (fl *flatIDs) at(r int) (uint64, uint32) {
-	if r >= fl.n {
+// at is record q's hash and length (0, 0: it lacks the field). In a ring,
+// q must be one of the window's records.
+func (fl *flatIDs) at(q int) (uint64, uint32) {
+	if q >= fl.n {
 		return 0, 0
 	}
-	l := uint32(fl.l[r>>flatChunkBits][r&flatChunkMask])
+	s := fl.slot(q)
+	l := uint32(fl.l[s>>flatChunkBits][s&flatChunkMask])
 	if l == 255 {
-		l = fl.long[r]
+		l = fl.long[s]
 	}
-	return fl.h[r>>flatChunkBits][r&flatChunkMask], l
+	return fl.h[s>>flatChunkBits][s&flatChunkMask], l
 }
 
-// flatOK says whether this model may keep identifiers as lists.
+// runs calls fn with the hashes of records lo to hi−1 in order, a run of
+// consecutive slots at a time (q0 the first record of the run); records
+// past the last listed are not given.
+func (fl *flatIDs) runs(lo, hi int, fn func(hs []uint64, q0 int)) {
+	hi = min(hi, fl.n)
+	for q := lo; q < hi; {
+		s := fl.slot(q)
+		chunk := fl.h[s>>flatChunkBits]
+		k := min(len(chunk)-s&flatChunkMask, hi-q)
+		if fl.ring > 0 {
+			k = min(k, fl.ring-s)
+		}
+		fn(chunk[s&flatChunkMask:s&flatChunkMask+k], q)
+		q += k
+	}
+}
+
+// flatOK says whether this model may keep identifiers as lists: a headless
+// model over the whole stream or a window of records.
 func (m *Model) flatOK() bool {
-	return m.opt.Headless && m.opt.Window.Kind == WindowAll && m.base.mode != BaselineRolling
+	k := m.opt.Window.Kind
+	return m.opt.Headless && (k == WindowAll || k == WindowRecords) && m.base.mode != BaselineRolling
 }
 
-// addFlat is add for a flat field: record r (its store index) has value v.
-func (f *field) addFlat(v []byte, r int) uint32 {
-	f.flat.put(r, flatHash(hashBytes(v)), len(v))
+// flatRing is the number of slots of a window's list: the window and one
+// more (a record is listed before the one it pushes out leaves), and a
+// segment's worth of slack.
+func (m *Model) flatRing() int {
+	if m.opt.Window.Kind == WindowRecords {
+		return m.opt.Window.Records + segmentMax + 1
+	}
+	return 0
+}
+
+// addFlat is add for a flat field: record q (its sequence number) has
+// value v.
+func (f *field) addFlat(v []byte, q int) uint32 {
+	f.flat.put(q, flatHash(hashBytes(v)), len(v))
 	if len(f.samples) < 3 {
 		f.samples = append(f.samples, string(v))
 	}
@@ -120,18 +186,30 @@ func (f *field) addFlat(v []byte, r int) uint32 {
 	return absent
 }
 
+// evictFlat takes record q, leaving the window, off a flat field: one
+// value fewer, and one distinct value fewer at most (see above).
+func (f *field) evictFlat(q int) {
+	h, l := f.flat.at(q)
+	if h == 0 {
+		return
+	}
+	f.present--
+	f.valueBytes -= int64(l)
+	f.distinct = max(f.distinct-1, 0)
+}
+
 // flatten turns hashed identifier idx into a flat one, its list made from
 // the store's column, which is then emptied.
 func (m *Model) flatten(idx int) {
 	f := m.fields[idx]
-	fl := &flatIDs{}
+	fl := &flatIDs{ring: m.flatRing()}
 	col := m.st.column(idx, 0, m.st.n, nil)
 	for r, id := range col {
 		if id != absent {
-			fl.put(r, flatHash(f.ids.hash(id)), int(f.ids.length(id)))
+			fl.put(m.st.gone+r, flatHash(f.ids.hash(id)), int(f.ids.length(id)))
 		}
 	}
-	fl.settled = m.st.n
+	fl.settled = m.st.pushed()
 	f.s, f.big = f.sum(), nil // the list keeps no counts: s is whole
 	m.st.dropColumn(idx)
 	f.flat = fl
@@ -148,9 +226,10 @@ func (m *Model) flatten(idx int) {
 // their runs are counted.
 func (m *Model) settle(f *field) {
 	fl := f.flat
-	if fl == nil || fl.settled == m.st.n {
+	if fl == nil || fl.settled == m.st.pushed() {
 		return
 	}
+	lo, hi := m.st.gone, m.st.pushed() // the window's records
 	parts := 1
 	for parts < 256 && int(f.present)/parts > settleSlice {
 		parts *= 2
@@ -170,13 +249,13 @@ func (m *Model) settle(f *field) {
 	}
 	for part := range parts {
 		clear(next)
-		for c, chunk := range fl.h {
-			for _, h := range chunk[:max(min(len(chunk), fl.n-c<<flatChunkBits), 0)] {
+		fl.runs(lo, hi, func(hs []uint64, _ int) {
+			for _, h := range hs {
 				if inPart(h, part) {
 					next[h>>dshift&(1<<digit-1)+1]++
 				}
 			}
-		}
+		})
 		for d := 1; d < len(next); d++ {
 			next[d] += next[d-1]
 		}
@@ -185,15 +264,15 @@ func (m *Model) settle(f *field) {
 			buf = make([]uint64, total+total/16)
 		}
 		buf = buf[:total]
-		for c, chunk := range fl.h {
-			for _, h := range chunk[:max(min(len(chunk), fl.n-c<<flatChunkBits), 0)] {
+		fl.runs(lo, hi, func(hs []uint64, _ int) {
+			for _, h := range hs {
 				if inPart(h, part) {
 					d := h >> dshift & (1<<digit - 1)
 					buf[next[d]] = h
 					next[d]++
 				}
 			}
-		}
+		})
 		// next[d] is now where bucket d ends.
 		lo := 0
 		for _, end := range next[:1<<digit] {
@@ -216,7 +295,7 @@ func (m *Model) settle(f *field) {
 		}
 	}
 	f.distinct, f.s = distinct, s
-	fl.settled = m.st.n
+	fl.settled = m.st.pushed()
 }
 
 // settleDigitBits is the widest digit settle places hashes by (1 MB of
@@ -234,7 +313,7 @@ const (
 func (m *Model) settleAll() {
 	var flat []*field
 	for _, f := range m.fields {
-		if f.flat != nil && f.flat.settled != m.st.n {
+		if f.flat != nil && f.flat.settled != m.st.pushed() {
 			flat = append(flat, f)
 		}
 	}
@@ -256,10 +335,13 @@ func (m *Model) unflatten(idx int) {
 	// Counted again as the list is replayed (to the same totals).
 	f.distinct, f.s, f.present, f.valueBytes = 0, 0, 0, 0
 	notes := fl.notes
+	if fl.ring > 0 {
+		notes = nil // the records before the window are gone (see above)
+	}
 	var noted []float64
 	ids := make([]uint32, m.st.n)
 	for r := range ids {
-		if h, l := fl.at(r); h != 0 {
+		if h, l := fl.at(m.st.gone + r); h != 0 {
 			// No cap: a listed field stays under MaxDistinct (capFlat).
 			ids[r], _ = f.addHash(h, int32(l), 0)
 		}

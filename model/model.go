@@ -179,7 +179,7 @@ func (m *Model) Add(rec *parse.Record, line int64, t int64) {
 			continue // a repeated key: the first one counts
 		}
 		m.mark[idx] = m.gen
-		m.cur[idx] = m.fields[idx].addAt(rec.Value(i), m.opt.MaxDistinct, m.st.n)
+		m.cur[idx] = m.fields[idx].addAt(rec.Value(i), m.opt.MaxDistinct, m.st.pushed())
 		if idx >= width {
 			width = idx + 1
 		}
@@ -247,6 +247,11 @@ func (m *Model) popOldest() {
 	for i, id := range row {
 		if id != absent && i < len(m.fields) {
 			m.fields[i].remove(id)
+		}
+	}
+	for _, f := range m.fields {
+		if f.flat != nil {
+			f.evictFlat(m.st.gone)
 		}
 	}
 	for i := range m.pairs {

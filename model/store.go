@@ -30,6 +30,7 @@ type store struct {
 	spare  *block
 	head   int
 	n      int
+	gone   int      // rows popped, ever: row i is the (gone+i)-th pushed
 	width  int      // the widest row pushed: row(i) has this many ids
 	out    []uint32 // row's result, reused
 	// decoded counts the ids read back (by row and column): the work
@@ -217,6 +218,7 @@ func (s *store) newBlock() *block {
 func (s *store) pop() {
 	s.head++
 	s.n--
+	s.gone++
 	if s.head == blockRows {
 		s.spare = s.blocks[0]
 		s.blocks[0] = nil
@@ -317,6 +319,9 @@ func (s *store) putColumn(j, lo int, ids []uint32) {
 		}
 	}
 }
+
+// pushed is the number of rows ever pushed (or committed).
+func (s *store) pushed() int { return s.gone + s.n }
 
 // commit takes the k rows reserve made into the window.
 func (s *store) commit(k int) { s.n += k }

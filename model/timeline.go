@@ -345,18 +345,18 @@ func (sc *timelineScan) scanGaps() {
 		// A record with the field right after the last one is counted
 		// here; note sees only the first and those after a gap.
 		if fl := f.flat; fl != nil {
-			for c, chunk := range fl.h {
-				base := c << flatChunkBits
-				for x, h := range chunk[:max(min(len(chunk), min(fl.n, sc.n)-base), 0)] {
+			gone := sc.m.st.gone // record gone+r of the list is row r
+			fl.runs(gone, gone+sc.n, func(hs []uint64, q0 int) {
+				for x, h := range hs {
 					if h != 0 {
-						if r := base + x; r == g.last+1 && g.last >= 0 {
+						if r := q0 - gone + x; r == g.last+1 && g.last >= 0 {
 							g.last, g.present = r, g.present+1
 						} else {
 							g.note(r)
 						}
 					}
 				}
-			}
+			})
 		} else {
 			var col []uint32
 			for lo := 0; lo < sc.n; lo += timelineSpan {
