@@ -181,7 +181,8 @@ func (m *Model) noteEntropies() {
 	for _, f := range m.fields {
 		h, _, _ := f.entropy(n)
 		if f.flat != nil {
-			// Filled by unflatten, which replays the list (flatids.go).
+			// Filled by unflatten, which replays the list, over the
+			// whole stream; never read (flatids.go).
 			h = math.NaN()
 			f.flat.notes = append(f.flat.notes, int(n))
 			if len(f.flat.notes) > historyLen {

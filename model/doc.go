@@ -45,8 +45,8 @@
 //     by a hash table of its own, or 64-bit hashes for an identifier), its
 //     counts, display text.
 //   - flatids.go: a headless run's identifiers as a list of hashes, one per
-//     record, sorted when a snapshot asks (exact, with the identifier rule
-//     still decided on exact counts).
+//     record (a ring in a window of records), sorted when a snapshot asks
+//     (exact, with the identifier rule still decided on exact counts).
 //   - cellmap.go: a pair's joint table (a dense matrix, or a hash map).
 //   - store.go: the window's records as id columns in blocks; row and
 //     column accessors (scans read columns, never whole rows).

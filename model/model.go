@@ -34,10 +34,10 @@ type Options struct {
 	// shard. Memory then grows with the shard's records, not its window.
 	NoIdentifiers bool
 	// Headless says the model's owner takes few snapshots (a report or a
-	// plan, one at the end): over a window that keeps everything, an
-	// identifier may then be kept as a list of hashes sorted when a
-	// snapshot asks, instead of a table kept exact as it goes
-	// (flatids.go). A screen, snapshotting several times a second, leaves
+	// plan, one at the end): over a window that keeps everything or the
+	// last N records, an identifier may then be kept as a list of hashes
+	// sorted when a snapshot asks, instead of a table kept exact as it
+	// goes (flatids.go). A screen, snapshotting several times a second, leaves
 	// it unset.
 	Headless bool
 }
