@@ -26,14 +26,16 @@ import (
 var parallelFormats = map[string]bool{"json": true, "logfmt": true}
 
 // A batch's records go to the model in one AddBatch, whose passes spread
-// over the cores only for segments large enough (model.parallelMin): the
-// larger the batch, the fewer segments it is cut into (the model also cuts
-// at its own reclassification and history points), and the less of the
-// model's work runs on the owner alone. 2048 lines (the model's largest
-// segment) spent about 0.15 CPU-s less on the owner than 512 over the
-// demo's 1M lines; the batches in flight (see pipeline) hold a few MB.
+// over the cores only for segments large enough (model.parallelMin). The
+// model's passes read each record's values again, field by field, after a
+// worker wrote them: the batches in flight (see pipeline) should fit in
+// the cores' caches. 512 lines (about 150 KB of demo records a batch)
+// took `report` over 1M demo lines 16% less wall time than 2048 (19% with
+// --window 100000), 5 interleaved runs each; 256 and 384 were no better
+// than 512. (Before the model's per-segment costs fell, 2048 had been the
+// better.)
 const (
-	batchLines = 2048    // lines per batch
+	batchLines = 512     // lines per batch
 	batchBytes = 1 << 20 // text per batch, at most (a longer line is a batch of its own)
 )
 
