@@ -48,4 +48,19 @@ func TestSameKeys(t *testing.T) {
 			t.Errorf("SameKeys(%v) = %v, want %v", c.b.spans, got, c.same)
 		}
 	}
+	// Keys of every length class (the compare takes 4 to 16 bytes as two
+	// words), differing in one byte anywhere.
+	for _, k := range []string{"a", "ab", "abc", "abcd", "abcdefg", "abcdefgh", "abcdefghijkl", "abcdefghijklmnop", "abcdefghijklmnopq", "abcdefghijklmnopqrstuvwxyz0123"} {
+		a := rec("tide", "1", k, "v")
+		if !a.SameKeys(rec("tide", "2", k, "w")) {
+			t.Errorf("%q: not the same as itself", k)
+		}
+		for i := range k {
+			other := []byte(k)
+			other[i] ^= 1
+			if a.SameKeys(rec("tide", "1", string(other), "v")) {
+				t.Errorf("%q: the same as %q", k, other)
+			}
+		}
+	}
 }
