@@ -3,6 +3,7 @@ package companion
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strconv"
 	"testing"
@@ -173,5 +174,66 @@ func TestModelKnowsCompanionSuffixes(t *testing.T) {
 	want := []string{BucketSuffix, TemplateSuffix}
 	if !slices.Equal(model.CompanionSuffixes, want) {
 		t.Fatalf("model.CompanionSuffixes = %q, companions are named with %q", model.CompanionSuffixes, want)
+	}
+}
+
+// TestBucketsValueMatchesLabel: the labels Value gives, remembered or not,
+// are label's, for values of every length (short ones remembered as two
+// words), repeated, and past the memo's capacity.
+func TestBucketsValueMatchesLabel(t *testing.T) {
+	r := rand.New(rand.NewPCG(11, 12))
+	var vals []string
+	for i := 0; i < 3*memoMax; i++ {
+		var v string
+		switch r.IntN(6) {
+		case 0:
+			v = strconv.Itoa(r.IntN(100000))
+		case 1:
+			v = strconv.FormatFloat(r.Float64()*1000, 'f', r.IntN(8), 64)
+		case 2:
+			v = strconv.FormatFloat(-r.ExpFloat64()*1e6, 'e', r.IntN(12), 64)
+		case 3:
+			v = []string{"-", "", "NaN", "12ms", "+7", "5.", "0.0", "1e308", "1e-320"}[r.IntN(9)]
+		case 4:
+			v = strconv.FormatFloat(r.Float64(), 'f', 10+r.IntN(12), 64) // past 16 bytes
+		default:
+			if len(vals) > 0 {
+				v = vals[r.IntN(len(vals))] // seen before
+			}
+		}
+		vals = append(vals, v)
+	}
+	// Values that share their first word and length, not their bucket:
+	// each must be told from the other by its second word.
+	pairs := []string{"12345678e3", "1234567800", "10000", "1000e", "1.5e3", "1.5e7", "0.0000001", "0.0000009e9"}
+	vals = append(append(pairs, vals...), pairs...)
+	var b, ref Buckets
+	for _, v := range vals {
+		if got, want := string(b.Value([]byte(v))), ref.label([]byte(v)); got != want {
+			t.Fatalf("Value(%q) = %q, label %q", v, got, want)
+		}
+	}
+	if b.short.used != memoMax {
+		t.Errorf("%d short values remembered, want the cap %d: the test no longer fills it", b.short.used, memoMax)
+	}
+}
+
+// TestShortMemoCollisions: in a table of 16 slots holding 13 values that
+// share their length and first word, probes pass over one another's
+// slots, and each value is still told by its second word.
+func TestShortMemoCollisions(t *testing.T) {
+	var ref Buckets
+	m := shortMemo{slots: make([]memoSlot, 16)}
+	var vals []string
+	for e := range 10 {
+		vals = append(vals, "12345678e"+strconv.Itoa(e))
+	}
+	vals = append(vals, "1234567800", "1234567.99", "12345678.9")
+	for round := 0; round < 2; round++ {
+		for _, v := range vals {
+			if got, want := m.get([]byte(v), ref.label), ref.label([]byte(v)); got != want {
+				t.Fatalf("round %d: %q gave %q, want %q", round, v, got, want)
+			}
+		}
 	}
 }
