@@ -229,21 +229,48 @@ func (m *Model) settle(f *field) {
 	if fl == nil || fl.settled == m.st.pushed() {
 		return
 	}
-	lo, hi := m.st.gone, m.st.pushed() // the window's records
+	// The window's records.
+	f.distinct, f.s = fl.count(m.st.gone, m.st.pushed(), int(f.present))
+	fl.settled = m.st.pushed()
+}
+
+// settleTail raises f.distinct, a lower bound, to the distinct values of
+// the records listed since the last settle, when that is more: the
+// reclassification's first try over the whole stream, as it costs those
+// records only (a field of unique values grows from the last settle by a
+// factor of 1/identLeave before its bound runs out, so the tail is most of
+// the list, and the whole is counted only when the tail does not prove
+// enough). Over 1M demo lines this counts 3.3M hashes in all instead of
+// 4.6M. f.s is left as it was. In a window it settles: there the bound
+// runs out as records leave, and tails then whole windows counted more
+// than whole windows alone (3.3M against 3.1M).
+func (m *Model) settleTail(f *field) {
+	fl := f.flat
+	lo, hi := fl.settled, m.st.pushed()
+	if fl.ring > 0 || fl.settled == hi {
+		m.settle(f)
+		return
+	}
+	d, _ := fl.count(lo, hi, hi-lo)
+	f.distinct = max(f.distinct, d)
+}
+
+// count returns the number of distinct hashes of records lo to hi−1 and
+// their Σ c·log c; n bounds how many of them have the field.
+func (fl *flatIDs) count(lo, hi, n int) (distinct, s int64) {
 	parts := 1
-	for parts < 256 && int(f.present)/parts > settleSlice {
+	for parts < 256 && n/parts > settleSlice {
 		parts *= 2
 	}
 	pbits := bits.Len(uint(parts - 1))
 	// The digit: the bits below the slice's, enough for about four hashes
 	// a bucket, at most settleDigitBits.
-	digit := min(max(bits.Len(uint(int(f.present)/parts))-2, 8), settleDigitBits)
+	digit := min(max(bits.Len(uint(n/parts))-2, 8), settleDigitBits)
 	dshift := 64 - pbits - digit
 	// next[d]: where digit d's next hash goes; the buckets end where
 	// the next begins.
 	next := make([]int32, 1<<digit+1)
 	var buf []uint64
-	var distinct, s int64
 	inPart := func(h uint64, part int) bool {
 		return h != 0 && (pbits == 0 || int(h>>(64-pbits)) == part)
 	}
@@ -294,8 +321,7 @@ func (m *Model) settle(f *field) {
 			}
 		}
 	}
-	f.distinct, f.s = distinct, s
-	fl.settled = m.st.pushed()
+	return distinct, s
 }
 
 // settleDigitBits is the widest digit settle places hashes by (1 MB of
@@ -385,18 +411,28 @@ func (m *Model) capFlat(k int) {
 
 // reclassifyFlat applies the identifier rule's exit test to the flat
 // fields with counts exact enough to decide it, unflattening those that
-// may leave (see above): the fields whose lower bound no longer proves
-// their share above identLeave are settled, side by side. It runs before
-// reclassify reads the counts.
+// may leave (see above): for the fields whose lower bound no longer proves
+// their share above identLeave, first the records since the last settle
+// are counted (settleTail), and those whose bound that does not restore
+// are settled; side by side. It runs before reclassify reads the counts.
 func (m *Model) reclassifyFlat() {
-	var unsure []int
+	unsure := func(f *field) bool {
+		return f.flat != nil && float64(f.distinct) < identLeave*float64(f.present)
+	}
+	var tail, whole []int
 	for i, f := range m.fields {
-		if f.flat != nil && float64(f.distinct) < identLeave*float64(f.present) {
-			unsure = append(unsure, i)
+		if unsure(f) {
+			tail = append(tail, i)
 		}
 	}
-	spread(parallelMin*len(unsure), len(unsure), func(k int) { m.settle(m.fields[unsure[k]]) })
-	for _, i := range unsure {
+	spread(parallelMin*len(tail), len(tail), func(k int) { m.settleTail(m.fields[tail[k]]) })
+	for _, i := range tail {
+		if unsure(m.fields[i]) {
+			whole = append(whole, i)
+		}
+	}
+	spread(parallelMin*len(whole), len(whole), func(k int) { m.settle(m.fields[whole[k]]) })
+	for _, i := range whole {
 		if f := m.fields[i]; float64(f.distinct) < flatLeave*float64(f.present) {
 			m.unflatten(i)
 		}
