@@ -23,6 +23,30 @@ import (
 // line: the reference for the pipeline.
 type seqSource struct{ parse.Source }
 
+// readThrough reads paths with an Ingester made from cfg (its clock a
+// millisecond a call, its source named like the tests'), through the
+// pipeline when parallel, else line by line: the reference.
+func readThrough(t *testing.T, cfg Config, source string, paths []string, maxLine int, parallel bool) *Ingester {
+	t.Helper()
+	clock := time.Unix(1e9, 0)
+	cfg.Clock = func() time.Time { clock = clock.Add(time.Millisecond); return clock }
+	in, err := New(cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	in.AddSource(source)
+	var src parse.Source = parse.NewFileSource(paths, maxLine)
+	if !parallel {
+		src = seqSource{src}
+	} else if !parallelOK(src) {
+		t.Fatal("the pipeline would not run")
+	}
+	if err := in.ReadSource(context.Background(), src); err != nil {
+		t.Fatal(err)
+	}
+	return in
+}
+
 // TestPipelineEqualsSequential: files parsed by the parallel pipeline give
 // the same snapshot, figure for figure, and the same accounting (lines,
 // rejections and their examples, line numbers, sources) as reading them
@@ -59,23 +83,8 @@ func TestPipelineEqualsSequential(t *testing.T) {
 	for _, w := range []model.Window{{Kind: model.WindowAll}, {Kind: model.WindowRecords, Records: 1500}} {
 		t.Run(w.String(), func(t *testing.T) {
 			run := func(parallel, headless bool) *model.Snapshot {
-				clock := time.Unix(1e9, 0)
-				in, err := New(Config{MaxLine: 600, Model: model.Options{Window: w, Headless: headless},
-					Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }})
-				if err != nil {
-					t.Fatal(err)
-				}
-				in.AddSource("files")
-				var src parse.Source = parse.NewFileSource(paths, 600)
-				if !parallel {
-					src = seqSource{src}
-				} else if !parallelOK(src) {
-					t.Fatal("the pipeline would not run")
-				}
-				if err := in.ReadSource(context.Background(), src); err != nil {
-					t.Fatal(err)
-				}
-				return in.Snapshot(model.SnapshotOptions{})
+				cfg := Config{MaxLine: 600, Model: model.Options{Window: w, Headless: headless}}
+				return readThrough(t, cfg, "files", paths, 600, parallel).Snapshot(model.SnapshotOptions{})
 			}
 			want := run(false, false)
 			want.Taken = time.Time{}
@@ -126,24 +135,11 @@ func TestPipelineEqualsSequentialCompanions(t *testing.T) {
 		}
 		t.Run(name, func(t *testing.T) {
 			run := func(parallel bool) (*model.Snapshot, *Ingester) {
-				clock := time.Unix(1e9, 0)
-				cfg := Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 3000}},
-					Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }}
+				cfg := Config{Model: model.Options{Window: model.Window{Kind: model.WindowRecords, Records: 3000}}}
 				if where != nil {
 					cfg.Filter = &Filter{Where: []model.Cond{*where}}
 				}
-				in, err := New(cfg)
-				if err != nil {
-					t.Fatal(err)
-				}
-				in.AddSource("yard")
-				var src parse.Source = parse.NewFileSource([]string{path}, 0)
-				if !parallel {
-					src = seqSource{src}
-				}
-				if err := in.ReadSource(context.Background(), src); err != nil {
-					t.Fatal(err)
-				}
+				in := readThrough(t, cfg, "yard", []string{path}, 0, parallel)
 				return in.Snapshot(model.SnapshotOptions{}), in
 			}
 			got, gotIn := run(true)
@@ -221,22 +217,9 @@ func TestPipelineKeysAfterLeftOut(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "quay.jsonl")
 	os.WriteFile(path, data.Bytes(), 0o644)
 	run := func(parallel bool) *model.Snapshot {
-		clock := time.Unix(1e9, 0)
-		in, err := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}},
-			Filter: &Filter{Where: []model.Cond{{Field: "dock", Value: "d9", Not: true}}},
-			Clock:  func() time.Time { clock = clock.Add(time.Millisecond); return clock }})
-		if err != nil {
-			t.Fatal(err)
-		}
-		in.AddSource("quay")
-		var src parse.Source = parse.NewFileSource([]string{path}, 0)
-		if !parallel {
-			src = seqSource{src}
-		}
-		if err := in.ReadSource(context.Background(), src); err != nil {
-			t.Fatal(err)
-		}
-		return in.Snapshot(model.SnapshotOptions{})
+		cfg := Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}},
+			Filter: &Filter{Where: []model.Cond{{Field: "dock", Value: "d9", Not: true}}}}
+		return readThrough(t, cfg, "quay", []string{path}, 0, parallel).Snapshot(model.SnapshotOptions{})
 	}
 	got, want := run(true), run(false)
 	got.Taken, want.Taken = time.Time{}, time.Time{}
@@ -263,20 +246,7 @@ func TestPipelineRedetects(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "quay.log")
 	os.WriteFile(path, data.Bytes(), 0o644)
 	run := func(parallel bool) (*model.Snapshot, []string) {
-		clock := time.Unix(1e9, 0)
-		in, err := New(Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}},
-			Clock: func() time.Time { clock = clock.Add(time.Millisecond); return clock }})
-		if err != nil {
-			t.Fatal(err)
-		}
-		in.AddSource("quay")
-		var src parse.Source = parse.NewFileSource([]string{path}, 0)
-		if !parallel {
-			src = seqSource{src}
-		}
-		if err := in.ReadSource(context.Background(), src); err != nil {
-			t.Fatal(err)
-		}
+		in := readThrough(t, Config{Model: model.Options{Window: model.Window{Kind: model.WindowAll}}}, "quay", []string{path}, 0, parallel)
 		return in.Snapshot(model.SnapshotOptions{}), in.Warnings()
 	}
 	got, gotWarn := run(true)
