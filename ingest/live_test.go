@@ -18,23 +18,18 @@ import (
 // waitEnded polls until the live reader has taken the whole source.
 func waitEnded(t *testing.T, l *Live) *Frame {
 	t.Helper()
-	deadline := time.Now().Add(30 * time.Second)
-	for time.Now().Before(deadline) {
-		f, err := l.Frame(context.Background(), model.SnapshotOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if f.Ended {
-			return f
-		}
-		time.Sleep(20 * time.Millisecond)
-	}
-	t.Fatal("the live reader did not reach the end of a finite source")
-	return nil
+	return waitFrame(t, l, "did not reach the end of a finite source", func(f *Frame) bool { return f.Ended })
 }
 
 // waitLines polls until the live reader has taken n lines.
 func waitLines(t *testing.T, l *Live, n int64) {
+	t.Helper()
+	waitFrame(t, l, fmt.Sprintf("did not take %d lines", n), func(f *Frame) bool { return f.Snap.Input.Lines >= n })
+}
+
+// waitFrame polls the live reader's frames until one satisfies done, for
+// at most 30 s.
+func waitFrame(t *testing.T, l *Live, what string, done func(*Frame) bool) *Frame {
 	t.Helper()
 	deadline := time.Now().Add(30 * time.Second)
 	for time.Now().Before(deadline) {
@@ -42,12 +37,13 @@ func waitLines(t *testing.T, l *Live, n int64) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if f.Snap.Input.Lines >= n {
-			return
+		if done(f) {
+			return f
 		}
 		time.Sleep(20 * time.Millisecond)
 	}
-	t.Fatalf("the live reader did not take %d lines", n)
+	t.Fatal("the live reader " + what)
+	return nil
 }
 
 func TestLiveReadsEverything(t *testing.T) {
