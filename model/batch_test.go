@@ -264,37 +264,14 @@ func TestHeadlessIdentifiersMatchTable(t *testing.T) {
 		for i := 0; i < 3000; i += 7 { // some longer than a list's length byte holds
 			stream[i].kv["manifest"] += strings.Repeat("x", 250+i%20)
 		}
-		table := New(Options{Window: all})
-		batched := New(Options{Window: all, Headless: true})
-		single := New(Options{Window: all, Headless: true})
 		wasFlat, left := false, false
-		for i := 0; i < len(stream); {
-			k := min(len(stream)-i, 1+r.IntN(3000))
-			if r.IntN(4) == 0 {
-				k = min(len(stream)-i, 1+r.IntN(5))
-			}
-			recs, lines, times := segmentOf(stream, keys, i, i+k, single)
-			table.AddBatch(recs, lines, times)
-			batched.AddBatch(recs, lines, times)
-			i += k
+		table, batched, single := feedHeadless(t, r, seed, stream, keys, all, func(batched *Model) {
 			if f := batched.fields[batched.byName["manifest"]]; f.flat != nil {
 				wasFlat = true
 			} else if wasFlat && !f.ident {
 				left = true
 			}
-			if r.IntN(5) > 0 && i < len(stream) {
-				continue
-			}
-			name := "seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
-			want := table.Snapshot(SnapshotOptions{})
-			for _, m := range []*Model{batched, single} {
-				got := m.Snapshot(SnapshotOptions{})
-				got.Taken, want.Taken = time.Time{}, time.Time{}
-				if err := sameSnapshot(got, want); err != "" {
-					t.Fatalf("%s: the headless snapshot differs from the table's: %s", name, err)
-				}
-			}
-		}
+		})
 		if !wasFlat || !left {
 			t.Fatalf("seed %d: the identifier was listed %v, left the rule %v: the test no longer covers both", seed, wasFlat, left)
 		}
@@ -338,20 +315,9 @@ func TestHeadlessWindowIdentifiersMatchTable(t *testing.T) {
 				stream[i].kv["ticket"] = v + strings.Repeat("x", 250+i%20)
 			}
 		}
-		table := New(Options{Window: w})
-		batched := New(Options{Window: w, Headless: true})
-		single := New(Options{Window: w, Headless: true})
 		listed := map[string]bool{}
 		left := false
-		for i := 0; i < len(stream); {
-			k := min(len(stream)-i, 1+r.IntN(3000))
-			if r.IntN(4) == 0 {
-				k = min(len(stream)-i, 1+r.IntN(5))
-			}
-			recs, lines, times := segmentOf(stream, keys, i, i+k, single)
-			table.AddBatch(recs, lines, times)
-			batched.AddBatch(recs, lines, times)
-			i += k
+		table, batched, single := feedHeadless(t, r, seed, stream, keys, w, func(batched *Model) {
 			for _, name := range []string{"manifest", "ticket"} {
 				if f := batched.fields[batched.byName[name]]; f.flat != nil {
 					listed[name] = true
@@ -359,19 +325,7 @@ func TestHeadlessWindowIdentifiersMatchTable(t *testing.T) {
 					left = true
 				}
 			}
-			if r.IntN(5) > 0 && i < len(stream) {
-				continue
-			}
-			name := "seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
-			want := table.Snapshot(SnapshotOptions{})
-			for _, m := range []*Model{batched, single} {
-				got := m.Snapshot(SnapshotOptions{})
-				got.Taken, want.Taken = time.Time{}, time.Time{}
-				if err := sameSnapshot(got, want); err != "" {
-					t.Fatalf("%s: the headless snapshot differs from the table's: %s", name, err)
-				}
-			}
-		}
+		})
 		if !listed["manifest"] || !listed["ticket"] || !left {
 			t.Fatalf("seed %d: listed %v, the manifest left the rule %v: the test no longer covers both", seed, listed, left)
 		}
@@ -409,6 +363,41 @@ func TestHeadlessWindowIdentifiersMatchTable(t *testing.T) {
 			}
 		}
 	}
+}
+
+// feedHeadless feeds stream to a table-keeping model and to two headless
+// ones over window w, one by AddBatch in segments of random sizes and one
+// by Add, calling after with the batched one after each segment; at random
+// points (and at the end) both headless snapshots must equal the table's.
+func feedHeadless(t *testing.T, r *rand.Rand, seed uint64, stream []plainRec, keys []string, w Window, after func(batched *Model)) (table, batched, single *Model) {
+	t.Helper()
+	table = New(Options{Window: w})
+	batched = New(Options{Window: w, Headless: true})
+	single = New(Options{Window: w, Headless: true})
+	for i := 0; i < len(stream); {
+		k := min(len(stream)-i, 1+r.IntN(3000))
+		if r.IntN(4) == 0 {
+			k = min(len(stream)-i, 1+r.IntN(5))
+		}
+		recs, lines, times := segmentOf(stream, keys, i, i+k, single)
+		table.AddBatch(recs, lines, times)
+		batched.AddBatch(recs, lines, times)
+		i += k
+		after(batched)
+		if r.IntN(5) > 0 && i < len(stream) {
+			continue
+		}
+		name := "seed " + strconv.Itoa(int(seed)) + "/at " + strconv.Itoa(i)
+		want := table.Snapshot(SnapshotOptions{})
+		for _, m := range []*Model{batched, single} {
+			got := m.Snapshot(SnapshotOptions{})
+			got.Taken, want.Taken = time.Time{}, time.Time{}
+			if err := sameSnapshot(got, want); err != "" {
+				t.Fatalf("%s: the headless snapshot differs from the table's: %s", name, err)
+			}
+		}
+	}
+	return table, batched, single
 }
 
 // segmentOf is stream[i:j] as AddBatch takes it (records, line numbers
