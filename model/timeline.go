@@ -86,7 +86,7 @@ func (m *Model) Timeline(s *Snapshot, sources []string) []TimelineEntry {
 	sc.dists = m.timelineDists(s, chunks)
 	sc.gaps = make([]fieldGaps, len(m.fields))
 	for i := range sc.gaps {
-		sc.gaps[i].last = -1
+		sc.gaps[i].last = noRow
 	}
 	sc.scan(sources)
 	var out []TimelineEntry
@@ -154,7 +154,7 @@ type distSeries struct {
 
 // fieldGaps keeps a field's runs of records without it.
 type fieldGaps struct {
-	last    int // row of the last record with the field (−1: none yet)
+	last    int // row of the last record with the field (noRow: none yet)
 	present int
 	firstAt int
 	runs    []segment // rows [start, end) lacking the field, longest kept
@@ -342,18 +342,12 @@ func (sc *timelineScan) scanGaps() {
 	fields := sc.m.fields
 	spread(sc.n*len(fields), len(fields), func(i int) {
 		f, g := fields[i], &sc.gaps[i]
-		// A record with the field right after the last one is counted
-		// here; note sees only the first and those after a gap.
 		if fl := f.flat; fl != nil {
 			gone := sc.m.st.gone // record gone+r of the list is row r
 			fl.runs(gone, gone+sc.n, func(hs []uint64, q0 int) {
 				for x, h := range hs {
 					if h != 0 {
-						if r := q0 - gone + x; r == g.last+1 && g.last >= 0 {
-							g.last, g.present = r, g.present+1
-						} else {
-							g.note(r)
-						}
+						g.has(q0 - gone + x)
 					}
 				}
 			})
@@ -364,11 +358,7 @@ func (sc *timelineScan) scanGaps() {
 				col = sc.m.st.column(i, lo, hi, col)
 				for x, id := range col {
 					if id != absent {
-						if r := lo + x; r == g.last+1 && g.last >= 0 {
-							g.last, g.present = r, g.present+1
-						} else {
-							g.note(r)
-						}
+						g.has(lo + x)
 					}
 				}
 			}
@@ -378,6 +368,22 @@ func (sc *timelineScan) scanGaps() {
 		}
 	})
 }
+
+// has notes that row r has the field: a row right after the last one is
+// counted here (inlined: it is most rows), note sees the first and those
+// after a gap.
+func (g *fieldGaps) has(r int) {
+	if r != g.last+1 {
+		g.note(r)
+		return
+	}
+	g.last = r
+	g.present++
+}
+
+// noRow is fieldGaps.last before any row: −2, so that no row comes right
+// after it.
+const noRow = -2
 
 func (g *fieldGaps) note(r int) {
 	if g.last < 0 {
