@@ -94,10 +94,11 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 	b.shape = b.shape[:0]
 	nShapes := 0
 	values := 0
+	shapeValues := 0 // the values a record of the last shape gives (its keys that name fields, once each)
 	for r, rec := range recs {
 		if r > 0 && (rec.KeysRepeat || rec.SameKeys(recs[r-1])) {
 			b.shape = append(b.shape, b.shape[r-1])
-			values += m.shapeValues
+			values += shapeValues
 			continue
 		}
 		m.gen++
@@ -109,12 +110,12 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 			b.byKey = append(b.byKey, nil)
 		}
 		byKey := b.byKey[nShapes][:0]
-		m.shapeValues = 0
+		shapeValues = 0
 		for i := 0; i < rec.Len(); i++ {
 			idx := m.fieldOf(rec.Key(i), i)
 			if idx >= 0 && m.mark[idx] != m.gen {
 				m.mark[idx] = m.gen
-				m.shapeValues++
+				shapeValues++
 			} else {
 				idx = -1 // past the field cap, or a repeated key: the first one counts
 			}
@@ -123,7 +124,7 @@ func (m *Model) addSegment(recs []*parse.Record, lines, times []int64) {
 		b.byKey[nShapes] = byKey
 		b.shape = append(b.shape, int32(nShapes))
 		nShapes++
-		values += m.shapeValues
+		values += shapeValues
 	}
 	w := len(m.fields)
 	b.pos = slices.Grow(b.pos[:0], nShapes*w)[:nShapes*w]

@@ -39,8 +39,7 @@ func (m *cellMap) count(as, bs []uint32) {
 // each record's home slot is found and loaded, then the records are
 // counted. The first loop's loads do not wait on one another, so their
 // cache misses (a table of a million cells is tens of MB) overlap, where
-// counting record by record waited out each in turn
-// (BenchmarkCountHashed: see the note at countBlock).
+// counting record by record waited out each in turn.
 func (m *cellMap) countHashed(as, bs []uint32) {
 	var home [countBlock]uint64
 	for lo := 0; lo < len(as); lo += countBlock {
@@ -64,7 +63,9 @@ func (m *cellMap) countHashed(as, bs []uint32) {
 	}
 }
 
-// countBlock is how many records countHashed takes a block.
+// countBlock is how many records countHashed takes a block
+// (BenchmarkCountHashed, 1M records into about 1M cells: 62–71 ms record by
+// record, 43–45 with blocks of 16, 47–50 with 64 or 256).
 const countBlock = 16
 
 // uncount takes one record off cell (as[r], bs[r]) for each r.

@@ -98,9 +98,6 @@ type Model struct {
 
 	cur  []uint32
 	mark []uint32 // mark[i] == gen: field i was set in the current record
-	// shapeValues is how many values a record of the last shape that
-	// addSegment resolved gives (its keys that name fields, once each).
-	shapeValues int
 	hint        []int // hint[i]: the field the i-th key of the last record named
 	gen         uint32
 
