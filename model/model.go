@@ -98,8 +98,8 @@ type Model struct {
 
 	cur  []uint32
 	mark []uint32 // mark[i] == gen: field i was set in the current record
-	hint        []int // hint[i]: the field the i-th key of the last record named
-	gen         uint32
+	hint []int    // hint[i]: the field the i-th key of the last record named
+	gen  uint32
 
 	sinceReclass int
 	batch        batchState
