@@ -12,9 +12,9 @@ import (
 // buffer, on their way to the Ingester. The live reader fills one under the
 // handoff's lock (handoff.go), copying each line; the pipeline's reader
 // reads a file straight into the buffer, where the lines stay with their
-// endings between them (batchReader, pipeline.go); the pipeline's workers parse it (parseBatch) before the
-// owner takes it (Ingester.takeBatch), the live runner's owner parses it
-// as it takes it. Either way every line goes through parseLine and
+// endings between them (batchReader, pipeline.go); the pipeline's workers
+// parse it (parseBatch) before the owner takes it (Ingester.takeBatch),
+// the live runner's owner parses it as it takes it. Either way every line goes through parseLine and
 // Ingester.account: the rules that make a line a record, a rejection or a
 // part are written once. Batches are recycled.
 type batch struct {
@@ -159,19 +159,15 @@ func (in *Ingester) takeBatch(b *batch, between func() bool) (first error) {
 		in.lastNum = l.num
 		in.observeLine(l.num, l.source)
 		in.keepRaw(text, l.num, l.source, l.tooLong)
+		format := in.format
 		if !in.account(l.kind, l.reason, l.num, l.source, text) {
-			// As read does: a run of lines the format cannot read may
-			// change it, and then the rest are read line by line.
-			if l.kind == lineRejected && l.reason != "blank line" && !l.tooLong {
-				format := in.format
-				in.rejected(text)
-				if in.format != format {
-					b.parsed = false
-				}
+			if in.format != format {
+				// The lines changed shape (account): the rest are read
+				// line by line, in the new format.
+				b.parsed = false
 			}
 			continue
 		}
-		in.accepted()
 		t := l.t
 		if !l.hasTime {
 			t = in.cfg.Clock().UnixNano()

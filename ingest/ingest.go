@@ -309,21 +309,17 @@ func (in *Ingester) start() {
 func (in *Ingester) read(line []byte, num int64, source string) bool {
 	in.lastNum = num
 	kind, reason := parseLine(in.format, line, false, &in.rec)
-	ok := in.account(kind, reason, num, source, line)
-	switch {
-	case ok:
-		in.accepted()
-	case kind != linePart && reason != "blank line":
-		in.rejected(line)
-	}
-	return ok
+	return in.account(kind, reason, num, source, line)
 }
 
 // account counts a line parsed as kind (rejected with reason, or a part)
-// and says whether it is a record.
+// and says whether it is a record. A record ends a run of lines the format
+// could not read, a rejection (not a blank line or one over --max-line)
+// adds to it, which may change the format (rejected, detect.go).
 func (in *Ingester) account(kind lineKind, reason string, num int64, source string, text []byte) bool {
 	switch kind {
 	case lineRecord:
+		in.accepted()
 		return true
 	case linePart:
 		in.input.Parts++
@@ -332,9 +328,11 @@ func (in *Ingester) account(kind lineKind, reason string, num int64, source stri
 		}
 	default:
 		if reason == "blank line" || reason == reasonTooLong {
-			text = nil
+			in.reject(num, source, reason, nil)
+			break
 		}
 		in.reject(num, source, reason, text)
+		in.rejected(text)
 	}
 	return false
 }
