@@ -1,11 +1,12 @@
 package companion
 
 import (
-	"encoding/binary"
 	"hash/maphash"
 	"math"
 	"math/bits"
 	"strconv"
+
+	"bitsift/parse"
 )
 
 // Numeric buckets: four per decade, with edges 1, 1.8, 3.2 and 5.6 times a
@@ -39,7 +40,7 @@ type Buckets struct {
 const memoMax = 1 << 12
 
 // shortMemo maps a value of 1 to 16 bytes, told exactly by its length and
-// two overlapping words (shortWords), to its label: an open-addressing
+// two overlapping words (parse.Words), to its label: an open-addressing
 // table with linear probing, twice memoMax slots, never more than memoMax
 // of them used. It replaced the map look-up, which took about 30 ns of a
 // record's labelling on the demo (a quarter of it). The hash is keyed
@@ -60,19 +61,6 @@ type memoSlot struct {
 
 var memoSeed = maphash.Bytes(maphash.MakeSeed(), nil) | 1
 
-// shortWords is a value of 1 to 16 bytes as two words that, with its
-// length, tell it exactly (the loads cover every byte).
-func shortWords(v []byte) (a, b uint64) {
-	n := len(v)
-	switch {
-	case n >= 8:
-		return binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])
-	case n >= 4:
-		return uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))
-	}
-	return uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1]), 0
-}
-
 // find returns the slot of the value (a, b, n): its own, or the empty one
 // where it goes.
 func (m *shortMemo) find(a, b uint64, n uint8) *memoSlot {
@@ -91,7 +79,7 @@ func (m *shortMemo) get(v []byte, label func([]byte) string) string {
 	if m.slots == nil {
 		m.slots = make([]memoSlot, 2*memoMax)
 	}
-	a, b := shortWords(v)
+	a, b := parse.Words(v)
 	s := m.find(a, b, uint8(len(v)))
 	if s.n != 0 {
 		return m.text[s.label]

@@ -3,6 +3,8 @@ package model
 import (
 	"hash/maphash"
 	"slices"
+
+	"bitsift/parse"
 )
 
 // hashSeed keys the value hashes of identifier fields for this process.
@@ -263,7 +265,8 @@ func (f *field) isNamed(key []byte) bool {
 		return false
 	}
 	if len(key) <= 16 {
-		return keyWords(key) == f.nameKey
+		a, b := parse.Words(key)
+		return wordKey{a, b} == f.nameKey
 	}
 	return f.name == string(key)
 }

@@ -1,9 +1,10 @@
 package model
 
 import (
-	"encoding/binary"
 	"hash/maphash"
 	"math/bits"
+
+	"bitsift/parse"
 )
 
 // hashTable maps the 64-bit keyed hashes of a field's values to their ids:
@@ -201,24 +202,18 @@ func textHash(v []byte) (uint64, wordKey) {
 	if n > 16 {
 		return maphash.Bytes(hashSeed, v), wordKey{}
 	}
-	k := keyWords(v)
+	a, b := parse.Words(v) // keyWords, written out: it is not inlined
+	k := wordKey{a, b}
 	hi, lo := bits.Mul64(k.a^textSeed^uint64(n)<<56, k.b^0x9E3779B97F4A7C15)
 	hi, lo = bits.Mul64(hi^lo, textSeed^0xD6E8FEB86659FD93)
 	return hi ^ lo, k
 }
 
-// keyWords is the wordKey of a value of up to 16 bytes.
+// keyWords is the wordKey of a value of up to 16 bytes (parse.Words). The
+// hot callers write it out (the compiler does not inline it).
 func keyWords(v []byte) wordKey {
-	n := len(v)
-	switch {
-	case n >= 8:
-		return wordKey{binary.LittleEndian.Uint64(v), binary.LittleEndian.Uint64(v[n-8:])}
-	case n >= 4:
-		return wordKey{uint64(binary.LittleEndian.Uint32(v)), uint64(binary.LittleEndian.Uint32(v[n-4:]))}
-	case n > 0:
-		return wordKey{a: uint64(v[0])<<16 | uint64(v[n>>1])<<8 | uint64(v[n-1])}
-	}
-	return wordKey{}
+	a, b := parse.Words(v)
+	return wordKey{a, b}
 }
 
 // probeText returns the id whose text is v (h, k = textHash(v)), or 0;

@@ -1,7 +1,5 @@
 package parse
 
-import "encoding/binary"
-
 // span locates one field of a Record inside its buffer: key is buf[k0:k1],
 // value is buf[v0:v1].
 type span struct{ k0, k1, v0, v1 int32 }
@@ -128,8 +126,8 @@ func (r *Record) rollback(m mark) {
 // Records of one stream mostly do, and the model then maps the keys to
 // its fields once for a run of such records.
 //
-// Keys are short: one of 4 to 16 bytes is compared as two overlapping
-// words (a call to compare each was most of its cost).
+// Keys are short: one of up to 16 bytes is compared by its Words (a call
+// to compare each was most of its cost).
 func (r *Record) SameKeys(o *Record) bool {
 	if len(r.spans) != len(o.spans) {
 		return false
@@ -141,21 +139,16 @@ func (r *Record) SameKeys(o *Record) bool {
 			return false
 		}
 		a, b := r.buf[s.k0:s.k1], o.buf[t.k0:t.k1]
-		switch {
-		case n >= 8 && n <= 16:
-			if binary.LittleEndian.Uint64(a) != binary.LittleEndian.Uint64(b) ||
-				binary.LittleEndian.Uint64(a[n-8:]) != binary.LittleEndian.Uint64(b[n-8:]) {
-				return false
-			}
-		case n >= 4 && n < 8:
-			if binary.LittleEndian.Uint32(a) != binary.LittleEndian.Uint32(b) ||
-				binary.LittleEndian.Uint32(a[n-4:]) != binary.LittleEndian.Uint32(b[n-4:]) {
-				return false
-			}
-		default:
+		if n > 16 {
 			if string(a) != string(b) {
 				return false
 			}
+			continue
+		}
+		a0, a1 := Words(a)
+		b0, b1 := Words(b)
+		if a0 != b0 || a1 != b1 {
+			return false
 		}
 	}
 	return true
