@@ -64,4 +64,6 @@
 //     (run side by side, reading columns).
 //   - baseline.go, profile.go, shift.go, broken.go, analysis.go: baselines,
 //     the window's Profile, shifts and broken rules against it.
+//   - timeline.go (+ timeline_scan.go, its pass over the window's
+//     columns), changepoint.go: findings along log time, with no baseline.
 package model
