@@ -77,7 +77,8 @@ much one tells about the other. It shows which fields are redundant, what
 changed, and what could be dropped before shipping.
 
 With no command it shows the live screen on a built-in demo stream (on a
-terminal), or prints the demo's report (otherwise).`,
+terminal), or prints the demo's report (otherwise); it does not read standard
+input (bitsift report - does).`,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 		Args:          cobra.NoArgs,

@@ -5,6 +5,7 @@ import (
 	"compress/gzip"
 	"context"
 	"encoding/json"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -239,5 +240,41 @@ func TestReportBaseline(t *testing.T) {
 	}
 	if code, _, errs := run(t, "", "report", "--baseline", inc, inc); code != ExitUsage || !strings.Contains(errs, "baseline") {
 		t.Errorf("a non-report baseline: exit %d (%s), want %d", code, errs, ExitUsage)
+	}
+}
+
+// TestInputWaiting: piped or redirected input gets the notice that the demo
+// runs instead; a terminal, /dev/null or no file does not.
+func TestInputWaiting(t *testing.T) {
+	r, w, err := os.Pipe()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	defer w.Close()
+	f, err := os.Open(write(t, "app.log", []byte("level=info\n")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	null, err := os.Open(os.DevNull)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer null.Close()
+	for _, c := range []struct {
+		name string
+		in   io.Reader
+		want bool
+	}{
+		{"pipe", r, true},
+		{"file", f, true},
+		{"/dev/null", null, false},
+		{"reader", strings.NewReader("x"), false},
+		{"none", (*os.File)(nil), false},
+	} {
+		if got := inputWaiting(c.in); got != c.want {
+			t.Errorf("%s: inputWaiting %v, want %v", c.name, got, c.want)
+		}
 	}
 }

@@ -3,7 +3,10 @@ package cli
 import (
 	"bufio"
 	"context"
+	"fmt"
+	"io"
 	"math"
+	"os"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -104,6 +107,11 @@ func runDefault(ctx context.Context, std IO, o *outputFlags) error {
 	if err != nil {
 		return err
 	}
+	if inputWaiting(std.In) {
+		// `zcat app.log.gz | bitsift` reads like a request to look at
+		// app.log; without this line the demo's figures would pass for it.
+		fmt.Fprintln(std.Err, "bitsift: standard input is not read without a command: this is the built-in demo (for your logs: bitsift report -, or bitsift watch -)")
+	}
 	if std.IsTerminal {
 		// A window of 100,000 records (50 s at the demo's pace) keeps
 		// memory bounded on an endless stream and lets the incident
@@ -132,4 +140,16 @@ func runDefault(ctx context.Context, std IO, o *outputFlags) error {
 		opt = model.SnapshotOptions{Deep: true, Profile: true}
 	}
 	return writeError(report.Write(std.Out, buildReport(in, in.Snapshot(opt)), o.output))
+}
+
+// inputWaiting says whether in is a pipe or a regular file: input the user
+// most likely meant to be read (a terminal, /dev/null or no file at all is
+// not).
+func inputWaiting(in io.Reader) bool {
+	f, ok := in.(*os.File)
+	if !ok || f == nil {
+		return false
+	}
+	fi, err := f.Stat()
+	return err == nil && (fi.Mode()&os.ModeNamedPipe != 0 || fi.Mode().IsRegular())
 }
