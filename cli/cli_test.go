@@ -121,6 +121,32 @@ func TestReportJSONSchema(t *testing.T) {
 	}
 }
 
+// TestByteOrderMarkFiles: a file written with a UTF-8 byte order mark, and
+// two such files joined with cat, lose no record to the mark, read from a
+// file (the parallel pipeline for the larger one) or from stdin.
+func TestByteOrderMarkFiles(t *testing.T) {
+	bom := "\ufeff"
+	small := bom + "{\"level\":\"info\",\"n\":1}\n{\"level\":\"warn\",\"n\":2}\n"
+	big := bom + string(demoLines(3000))
+	joined := big + big
+	for _, c := range []struct {
+		name, text string
+		records    int
+	}{{"small", small, 2}, {"big", big, 3000}, {"joined", joined, 6000}} {
+		for _, stdin := range []bool{false, true} {
+			args, in := []string{"report", "-o", "json", write(t, c.name+".log", []byte(c.text))}, ""
+			if stdin {
+				args[3], in = "-", c.text
+			}
+			code, out, errs := run(t, in, args...)
+			var r struct{ Records, Rejected int }
+			if err := json.Unmarshal([]byte(out), &r); err != nil || code != 0 || r.Records != c.records || r.Rejected != 0 {
+				t.Errorf("%s (stdin %v): exit %d, %d records, %d rejected, want %d and 0: %v %s", c.name, stdin, code, r.Records, r.Rejected, c.records, err, errs)
+			}
+		}
+	}
+}
+
 // TestGarbageCounted: garbage lines are rejected with reasons and the run
 // goes on; lines read = records + rejected.
 func TestGarbageCounted(t *testing.T) {

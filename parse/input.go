@@ -180,7 +180,7 @@ func (l *Lines) Next() ([]byte, int64, error) {
 				// The common case: the whole line is in bufio's buffer.
 				l.n++
 				l.Partial = false
-				return trimEOL(chunk), l.n, l.check(chunk)
+				return lineText(chunk), l.n, l.check(chunk)
 			} else {
 				l.buf = append(l.buf, chunk...)
 			}
@@ -192,7 +192,7 @@ func (l *Lines) Next() ([]byte, int64, error) {
 			if tooLong {
 				return nil, l.n, ErrLineTooLong
 			}
-			return trimEOL(l.buf), l.n, l.check(l.buf)
+			return lineText(l.buf), l.n, l.check(l.buf)
 		case errors.Is(err, bufio.ErrBufferFull):
 			continue
 		case errors.Is(err, io.EOF):
@@ -204,13 +204,13 @@ func (l *Lines) Next() ([]byte, int64, error) {
 			if tooLong {
 				return nil, l.n, ErrLineTooLong
 			}
-			return trimEOL(l.buf), l.n, l.check(l.buf)
+			return lineText(l.buf), l.n, l.check(l.buf)
 		default:
 			if len(l.buf) > 0 && !tooLong {
 				// Keep what came before the fault as a (partial) line.
 				l.n++
 				l.Partial = true
-				return trimEOL(l.buf), l.n, nil
+				return lineText(l.buf), l.n, nil
 			}
 			return nil, l.n, err
 		}
@@ -244,4 +244,24 @@ func trimEOL(b []byte) []byte {
 		}
 	}
 	return b
+}
+
+// lineText is line b as given: without its line ending and without a
+// leading byte order mark (bomLen). The length limit counts the mark.
+func lineText(b []byte) []byte {
+	b = trimEOL(b)
+	return b[bomLen(b):]
+}
+
+// bomLen is 3 when line b begins with a UTF-8 byte order mark, else 0.
+// Editors and Windows tools write one at the start of a file, and files
+// joined with cat carry theirs to the start of a line inside the stream;
+// left in, it made the line unreadable (a JSON object that does not start
+// with '{'). U+FEFF has no meaning at the start of a log line, so it is
+// dropped wherever a line begins with it.
+func bomLen(b []byte) int {
+	if len(b) >= 3 && b[0] == 0xEF && b[1] == 0xBB && b[2] == 0xBF {
+		return 3
+	}
+	return 0
 }

@@ -70,7 +70,8 @@ func (l *Lines) AppendBlock(block []byte, lines []BlockLine, room *BlockRoom) (o
 			if tooLong {
 				end = p
 			}
-			if !room.take(end - p) {
+			start := p + bomLen(block[p:end])
+			if !room.take(end - start) {
 				return block, lines, true, nil
 			}
 			l.skipping = false
@@ -78,7 +79,7 @@ func (l *Lines) AppendBlock(block []byte, lines []BlockLine, room *BlockRoom) (o
 			l.Partial = false
 			l.blockLines++
 			l.blockBytes += int64(scan - p)
-			lines = append(lines, BlockLine{Start: p, End: end, Num: l.n, TooLong: tooLong})
+			lines = append(lines, BlockLine{Start: start, End: end, Num: l.n, TooLong: tooLong})
 			p = scan
 			continue
 		}
@@ -127,14 +128,15 @@ func (l *Lines) AppendBlock(block []byte, lines []BlockLine, room *BlockRoom) (o
 			if tooLong {
 				end = p
 			}
-			if !room.take(end - p) {
+			start := p + bomLen(block[p:end])
+			if !room.take(end - start) {
 				l.pending = rerr
 				return block, lines, true, nil
 			}
 			l.skipping = false
 			l.n++
 			l.Partial = true
-			lines = append(lines, BlockLine{Start: p, End: end, Num: l.n, TooLong: tooLong})
+			lines = append(lines, BlockLine{Start: start, End: end, Num: l.n, TooLong: tooLong})
 			p = len(block)
 			return block, lines, false, io.EOF
 		}
@@ -143,9 +145,10 @@ func (l *Lines) AppendBlock(block []byte, lines []BlockLine, room *BlockRoom) (o
 			// unchecked, as Next does; the read is tried again next time.
 			l.n++
 			l.Partial = true
-			lines = append(lines, BlockLine{Start: p, End: len(block), Num: l.n})
+			start := p + bomLen(block[p:])
+			lines = append(lines, BlockLine{Start: start, End: len(block), Num: l.n})
 			room.Lines++
-			room.Text += len(block) - p
+			room.Text += len(block) - start
 			p = len(block)
 			return block, lines, false, nil
 		}

@@ -134,7 +134,7 @@ func readAllBlocks(l *Lines, rnd *rand.Rand) []string {
 // faults, whatever the rooms and the reader's pieces, mixed with Next.
 func TestAppendBlockMatchesNext(t *testing.T) {
 	rnd := rand.New(rand.NewPCG(1, 2))
-	pieces := []string{"a", "bb", "", "x\r", "\r", "ccc dd", "éé", strings.Repeat("L", 30), strings.Repeat("M", 11), "\x00z"}
+	pieces := []string{"a", "bb", "", "x\r", "\r", "ccc dd", "éé", strings.Repeat("L", 30), strings.Repeat("M", 11), "\x00z", "\ufeff"}
 	for trial := 0; trial < 4000; trial++ {
 		var b strings.Builder
 		for n := rnd.IntN(12); n > 0; n-- {
@@ -188,5 +188,41 @@ func TestAppendBlockLongLines(t *testing.T) {
 	}
 	if cap(block) > 3*blockReadMax {
 		t.Errorf("the block grew to %d bytes", cap(block))
+	}
+}
+
+// TestByteOrderMark: a UTF-8 byte order mark at the start of a line (of a
+// file, or of a file joined to another with cat) is not part of the line,
+// for Next, AppendBlock and a followed file's splitter alike; the length
+// limit counts it. One in the middle of a line stays.
+func TestByteOrderMark(t *testing.T) {
+	in := "\ufeff{\"a\":1}\r\n{\"a\":2}\n\ufeff{\"a\":3}\nx\ufeffy\n\ufeff12345678\n\ufeff"
+	want := []string{`#1:"{\"a\":1}"`, `#2:"{\"a\":2}"`, `#3:"{\"a\":3}"`, `#4:"x\ufeffy"`, "#5:TOO-LONG", `#6:""`, "EOF"}
+	if got := readAllNext(NewLines(strings.NewReader(in), 10)); strings.Join(got, "|") != strings.Join(want, "|") {
+		t.Errorf("Next: %q, want %q", got, want)
+	}
+	if got := readAllBlocks(NewLines(strings.NewReader(in), 10), rand.New(rand.NewPCG(1, 1))); strings.Join(got, "|") != strings.Join(want, "|") {
+		t.Errorf("AppendBlock: %q, want %q", got, want)
+	}
+	s := newSplitter(10)
+	s.buf = append(s.buf, in...)
+	var got []string
+	for {
+		text, tooLong, ok := s.line()
+		if !ok {
+			break
+		}
+		if tooLong {
+			got = append(got, "TOO-LONG")
+			continue
+		}
+		got = append(got, string(text))
+	}
+	if text, _, ok := s.rest(); ok {
+		got = append(got, "rest:"+string(text))
+	}
+	wantSplit := []string{"{\"a\":1}", "{\"a\":2}", "{\"a\":3}", "x\ufeffy", "TOO-LONG", "rest:"}
+	if strings.Join(got, "|") != strings.Join(wantSplit, "|") {
+		t.Errorf("splitter: %q, want %q", got, wantSplit)
 	}
 }

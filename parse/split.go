@@ -50,7 +50,7 @@ func (s *splitter) line() (text []byte, tooLong, ok bool) {
 	if len(text) > s.max {
 		return nil, true, true
 	}
-	return text, false, true
+	return text[bomLen(text):], false, true
 }
 
 // rest returns the unterminated last line held, if any, and forgets it:
@@ -67,7 +67,7 @@ func (s *splitter) rest() (text []byte, tooLong, ok bool) {
 	case len(text) > s.max:
 		return nil, true, true
 	}
-	return trimEOL(text), false, true
+	return lineText(text), false, true
 }
 
 // pending is the number of bytes held that are not yet a line.
