@@ -208,6 +208,9 @@ func (in *Ingester) Unreadable() string {
 	}
 	if len(in.input.RejectedExamples) > 0 {
 		fmt.Fprintf(&b, "\n  (%s)", in.input.RejectedExamples[0].Reason)
+		if in.input.RejectedExamples[0].Reason == reasonUTF16 {
+			return b.String() // no format or pattern reads it as it is
+		}
 	}
 	b.WriteString("\nname the format with --format, or give the lines' shape with --pattern")
 	if first != "" {

@@ -1,12 +1,14 @@
 package ingest
 
 import (
+	"bytes"
 	"context"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
+	"unicode/utf16"
 
 	"bitsift/model"
 	"bitsift/testdata/labelled"
@@ -90,5 +92,35 @@ func TestForcedFormatWarnsAndUnreadableHelps(t *testing.T) {
 	ok.ReadFiles(context.Background(), []string{"-"})
 	if w := ok.Warnings(); len(w) != 0 || ok.Unreadable() != "" {
 		t.Errorf("a fitting forced format warns %q / %q", w, ok.Unreadable())
+	}
+}
+
+// TestUTF16Explained: logfmt lines saved as UTF-16 (little-endian with its
+// byte order mark, as Windows PowerShell 5's Out-File writes by default;
+// encoded here with Go's unicode/utf16) read as no record, and the reason
+// says to convert the text, not to name a format or a pattern.
+func TestUTF16Explained(t *testing.T) {
+	text := "level=info msg=berthed vessel=7\r\nlevel=warn msg=delayed vessel=9\r\n"
+	u := utf16.Encode([]rune(text))
+	raw := []byte{0xFF, 0xFE}
+	for _, c := range u {
+		raw = append(raw, byte(c), byte(c>>8))
+	}
+	in, err := New(Config{Stdin: bytes.NewReader(raw)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in.ReadFiles(context.Background(), []string{"-"})
+	s := in.Snapshot(model.SnapshotOptions{})
+	if s.Records != 0 || s.Input.Rejected == 0 {
+		t.Fatalf("%d records, %d rejected", s.Records, s.Input.Rejected)
+	}
+	for _, r := range s.Input.RejectedExamples {
+		if r.Reason != reasonUTF16 {
+			t.Errorf("line %d: reason %q", r.Line, r.Reason)
+		}
+	}
+	if help := in.Unreadable(); !strings.Contains(help, "iconv -f UTF-16") || strings.Contains(help, "--pattern") {
+		t.Errorf("help:\n%s", help)
 	}
 }

@@ -490,6 +490,11 @@ type unknownFormat struct{}
 
 func (unknownFormat) Name() string         { return "unknown" }
 func (unknownFormat) Sniff([]byte) float64 { return 0 }
-func (unknownFormat) Parse([]byte, *parse.Record) error {
+func (unknownFormat) Parse(line []byte, _ *parse.Record) error {
+	if parse.LooksUTF16(line) {
+		return &parse.RejectError{Reason: reasonUTF16}
+	}
 	return &parse.RejectError{Reason: "no known format matches this stream (use --format or --pattern)"}
 }
+
+const reasonUTF16 = "the text looks like UTF-16, not UTF-8: convert it first (iconv -f UTF-16 -t UTF-8)"

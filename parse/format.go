@@ -1,6 +1,7 @@
 package parse
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"sort"
@@ -105,6 +106,17 @@ func Detect(sample [][]byte) (Detection, error) {
 	if n == 0 {
 		return best, errors.New("parse: no lines to detect a format from")
 	}
+	wide := 0
+	for _, l := range sample {
+		if LooksUTF16(l) {
+			wide++
+		}
+	}
+	if wide*2 > n {
+		// logfmt and the header formats would read it, NULs and all, into
+		// fields named "\x00l\x00e\x00v…".
+		return best, errors.New("parse: the lines look like UTF-16 text, which no format reads")
+	}
 	for _, name := range Names() {
 		f := registry[name]()
 		if l, ok := f.(Learner); ok {
@@ -139,4 +151,15 @@ func trimSpace(b []byte) []byte {
 		b = b[:len(b)-1]
 	}
 	return b
+}
+
+// LooksUTF16 says whether line looks like UTF-16 text cut at its newline
+// bytes: it starts with a UTF-16 byte order mark, or a third or more of
+// its bytes are NUL (every other byte, for ASCII text). Windows tools
+// write logs so (Windows PowerShell 5's Out-File, by default).
+func LooksUTF16(line []byte) bool {
+	if len(line) >= 2 && (line[0] == 0xFF && line[1] == 0xFE || line[0] == 0xFE && line[1] == 0xFF) {
+		return true
+	}
+	return len(line) > 0 && bytes.Count(line, []byte{0})*3 >= len(line)
 }
