@@ -33,6 +33,7 @@ type Header struct {
 	learned bool // from a sample, not from the line being sniffed
 	items   []headItem
 	scratch Record
+	plainB  []byte // a line without its colour codes (plain)
 }
 
 type headKind uint8
@@ -105,6 +106,7 @@ func (h *Header) Slots() string {
 // with a syslog <PRI> (those formats know the syslog header better), 0 for
 // a line with no timestamp where the header has one.
 func (h *Header) Sniff(line []byte) float64 {
+	line = h.plain(line)
 	if !h.learned {
 		h.learn([][]byte{line})
 	}
@@ -133,14 +135,55 @@ func (h *Header) Learn(sample [][]byte) {
 
 // Parse implements Format.
 func (h *Header) Parse(line []byte, rec *Record) error {
-	_, err := h.parse(line, rec)
+	_, err := h.parse(h.plain(line), rec)
 	return err
+}
+
+// plain returns line without its ANSI control sequences (ESC '[' …, the
+// colour codes a logger writes when it believes it prints to a terminal,
+// which stay in files that docker logs or a process manager collect).
+// Left in, "\x1b[32mINFO\x1b[0m" was no level, so the header ended at
+// the timestamp and the level went into the message, where the templates
+// merged INFO and WARN lines. The copy is valid until the next call; a line
+// with no ESC byte is returned as is.
+func (h *Header) plain(line []byte) []byte {
+	i := bytes.IndexByte(line, 0x1b)
+	if i < 0 {
+		return line
+	}
+	h.plainB = stripCSI(append(h.plainB[:0], line[:i]...), line[i:])
+	return h.plainB
+}
+
+// stripCSI appends s to dst without its CSI sequences: ESC '[', parameter
+// and intermediate bytes (0x20–0x3F), and a final byte (0x40–0x7E), as
+// ECMA-48 defines them. A lone ESC, or one before another byte, is kept.
+func stripCSI(dst, s []byte) []byte {
+	for i := 0; i < len(s); i++ {
+		if s[i] != 0x1b || i+1 >= len(s) || s[i+1] != '[' {
+			dst = append(dst, s[i])
+			continue
+		}
+		j := i + 2
+		for j < len(s) && s[j] >= 0x20 && s[j] <= 0x3f {
+			j++
+		}
+		if j < len(s) && s[j] >= 0x40 && s[j] <= 0x7e {
+			i = j // the sequence, final byte included, is dropped
+			continue
+		}
+		dst = append(dst, s[i])
+	}
+	return dst
 }
 
 func (h *Header) learn(sample [][]byte) {
 	h.slots, h.pipe = nil, false
 	var lines [][]byte
 	for _, l := range sample {
+		if bytes.IndexByte(l, 0x1b) >= 0 {
+			l = stripCSI(nil, l) // see plain
+		}
 		if l = trimSpace(l); len(l) > 0 {
 			lines = append(lines, l)
 		}

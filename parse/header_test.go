@@ -2,6 +2,7 @@ package parse
 
 import (
 	"bytes"
+	"fmt"
 	"testing"
 	"time"
 )
@@ -127,6 +128,39 @@ func TestRFC3164Tags(t *testing.T) {
 		got := fieldsOf(&rec)
 		if got["app"] != c.app || got["pid"] != c.pid || got["msg"] != c.msg {
 			t.Errorf("%s: %v", c.line, got)
+		}
+	}
+}
+
+// TestHeaderColours: each header shape with its level (or, lacking one,
+// its first word) wrapped in ANSI colour codes, and an 8-bit colour and a
+// reset around the message, reads as the plain line does, learned from
+// coloured lines; a lone ESC stays in the message.
+func TestHeaderColours(t *testing.T) {
+	for _, l := range headerLines {
+		var coloured []byte
+		for _, word := range []string{" WARN ", " INFO ", " I ", " Info ", "[error]"} {
+			if i := bytes.Index(l, []byte(word)); i >= 0 {
+				coloured = append(append(append(append([]byte{}, l[:i]...), "\x1b[1;33m"...), word...), "\x1b[0m"...)
+				coloured = append(coloured, l[i+len(word):]...)
+				break
+			}
+		}
+		if coloured == nil {
+			coloured = append([]byte("\x1b[2m"), l...)
+		}
+		coloured = append(append(coloured, " \x1b[38;5;208mdone\x1b[m \x1b"...), 'x')
+		plainLine := append(append([]byte{}, l...), " done \x1bx"...)
+		h, hc := &Header{}, &Header{}
+		h.Learn([][]byte{plainLine, plainLine})
+		hc.Learn([][]byte{coloured, coloured})
+		var want, got Record
+		errW, errG := h.Parse(plainLine, &want), hc.Parse(coloured, &got)
+		if (errW == nil) != (errG == nil) || fmt.Sprint(fieldsOf(&want)) != fmt.Sprint(fieldsOf(&got)) {
+			t.Errorf("%q:\n  got  %v (%v)\n  want %v (%v)", coloured, fieldsOf(&got), errG, fieldsOf(&want), errW)
+		}
+		if hc.Sniff(coloured) != h.Sniff(plainLine) {
+			t.Errorf("%q: sniffs %.2f, the plain line %.2f", coloured, hc.Sniff(coloured), h.Sniff(plainLine))
 		}
 	}
 }
