@@ -3,6 +3,7 @@ package ingest
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -122,5 +123,41 @@ func TestUTF16Explained(t *testing.T) {
 	}
 	if help := in.Unreadable(); !strings.Contains(help, "iconv -f UTF-16") || strings.Contains(help, "--pattern") {
 		t.Errorf("help:\n%s", help)
+	}
+}
+
+// TestTracesNoRedetection: a stack trace longer than redetectRun lines
+// after a record is rejected line by line as a continuation (the reason
+// says so), and does not make the Ingester detect the format again.
+func TestTracesNoRedetection(t *testing.T) {
+	var b strings.Builder
+	for i := 0; i < 120; i++ {
+		fmt.Fprintf(&b, "2026-03-14 02:%02d:%02d,417 INFO [berth-io-%d] quay.berth.Planner: berth %d assigned\n", i/60, i%60, i%4, i)
+		if i == 80 {
+			b.WriteString("java.lang.IllegalStateException: over capacity\n")
+			for k := 0; k < 2*redetectRun; k++ {
+				fmt.Fprintf(&b, "\tat quay.berth.Frame%d.run(Frame.java:%d)\n", k, k)
+			}
+		}
+	}
+	in, err := New(Config{Stdin: strings.NewReader(b.String())})
+	if err != nil {
+		t.Fatal(err)
+	}
+	in.ReadFiles(context.Background(), []string{"-"})
+	s := in.Snapshot(model.SnapshotOptions{})
+	if s.Records != 120 || s.Input.Rejected != 1+2*redetectRun || s.Input.Format != "header" {
+		t.Errorf("%d records, %d rejected, format %s", s.Records, s.Input.Rejected, s.Input.Format)
+	}
+	if w := in.Warnings(); len(w) != 0 {
+		t.Errorf("warnings %q", w)
+	}
+	for _, r := range s.Input.RejectedExamples {
+		if r.Reason != reasonContinuation {
+			t.Errorf("line %d: reason %q", r.Line, r.Reason)
+		}
+	}
+	if s.Index("thread") < 0 {
+		t.Errorf("no thread field: %v", s.Fields)
 	}
 }

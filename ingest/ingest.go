@@ -331,6 +331,12 @@ func (in *Ingester) account(kind lineKind, reason string, num int64, source stri
 			in.reject(num, source, reason, nil)
 			break
 		}
+		if parse.LooksContinuation(text) {
+			// A stack trace's lines follow their record with none of its
+			// header: they say nothing of the format (no re-detection).
+			in.reject(num, source, reasonContinuation, text)
+			break
+		}
 		in.reject(num, source, reason, text)
 		in.rejected(text)
 	}
@@ -496,5 +502,9 @@ func (unknownFormat) Parse(line []byte, _ *parse.Record) error {
 	}
 	return &parse.RejectError{Reason: "no known format matches this stream (use --format or --pattern)"}
 }
+
+// reasonContinuation is the rejection of a line that continues the record
+// before (parse.LooksContinuation): records are read a line each.
+const reasonContinuation = "continues the record before (a stack trace or wrapped text); each record is one line here"
 
 const reasonUTF16 = "the text looks like UTF-16, not UTF-8: convert it first (iconv -f UTF-16 -t UTF-8)"

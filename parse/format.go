@@ -117,6 +117,24 @@ func Detect(sample [][]byte) (Detection, error) {
 		// fields named "\x00l\x00e\x00v…".
 		return best, errors.New("parse: the lines look like UTF-16 text, which no format reads")
 	}
+	// Continuation lines (stack traces) are left out, unless nearly all
+	// the lines are such (then they are the format): the lines that start
+	// records decide it. Java services' traces can be most of the lines.
+	cont := 0
+	for _, l := range sample {
+		if LooksContinuation(l) {
+			cont++
+		}
+	}
+	if cont > 0 && cont*10 < n*9 {
+		kept := make([][]byte, 0, len(sample)-cont)
+		for _, l := range sample {
+			if !LooksContinuation(l) {
+				kept = append(kept, l)
+			}
+		}
+		sample, n = kept, n-cont
+	}
 	for _, name := range Names() {
 		f := registry[name]()
 		if l, ok := f.(Learner); ok {
