@@ -70,8 +70,8 @@ type Because struct {
 // A record's bits are its surprisal against the whole input, as the
 // report prices surprising records without a baseline: the sum over its
 // informative fields (not identifiers, constants or the timestamp) of
-// −log2 p(value | the value of the field's best predictor), or −log2
-// p(value) for a field without one.
+// −log2 p(value | the value of the field's parent in the forest of
+// model.Snapshot.SurpriseForest), or −log2 p(value) for a root.
 func Annotate(ctx context.Context, cfg Config, paths []string, w io.Writer) (*model.Snapshot, error) {
 	paths, cleanup, err := spoolStdin(cfg, paths)
 	if err != nil {
@@ -304,13 +304,14 @@ const absentValue = "\x00absent"
 func newPricer(s *model.Snapshot) *pricer {
 	p := &pricer{}
 	tk := s.Input.TimeField
-	for _, f := range s.Fields {
+	parent := s.SurpriseForest(func(i int) bool { return s.Fields[i].Name != tk })
+	for i, f := range s.Fields {
 		if f.Kind == model.Identifier || f.Kind == model.Constant || f.Name == tk || f.Kind == "timestamp" {
 			continue
 		}
 		pf := pricedField{name: f.Name, count: map[string]float64{}}
-		if f.BestGiven != "" && f.BestGiven != tk {
-			pf.given = f.BestGiven
+		if g := parent[i]; g >= 0 {
+			pf.given = s.Fields[g].Name
 			pf.givenCount = map[string]float64{}
 			pf.pair = map[[2]string]float64{}
 		}

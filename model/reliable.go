@@ -128,6 +128,12 @@ func (s *Snapshot) Determines(j, i int) bool {
 	return r <= DerivedMaxResidual && r <= 0.1*s.Fields[i].Entropy && s.RFI(i, j) >= DerivedMinRFI
 }
 
+// predicts says whether Fj may be named as Fi's predictor: it passes the
+// derived rule, or its RFI reaches PredictorMinRFI.
+func (s *Snapshot) predicts(j, i int) bool {
+	return s.Determines(j, i) || s.RFI(i, j) >= PredictorMinRFI
+}
+
 // classify finds each field's best predictor and marks derived fields (see
 // the rules above).
 func (s *Snapshot) classify() {
@@ -148,10 +154,10 @@ func (s *Snapshot) classify() {
 				// made from it: that it "predicts" it says nothing.
 				continue
 			}
-			det, rfi, res := s.Determines(j, i), s.RFI(i, j), s.Cond(i, j)
-			if !det && rfi < PredictorMinRFI {
+			if !s.predicts(j, i) {
 				continue
 			}
+			det, rfi, res := s.Determines(j, i), s.RFI(i, j), s.Cond(i, j)
 			better := best < 0 || (det && !bestDet)
 			if !better && det == bestDet {
 				switch {

@@ -9,8 +9,19 @@ import (
 // Surprisal. A record's surprisal is Σ over its non-identifier fields of
 // −log2 p(value | the value of the field's best predictor), in bits.
 //
-// Against the window (no baseline) p is read off the window's own tables:
-// c(g,f)/c(g) for the best predictor G, c(f)/N for a field with none.
+// Against the window (no baseline) p is read off the window's own tables,
+// under a model shaped as a forest: c(g,f)/c(g) for a field F whose parent
+// in the forest is G, c(f)/N for a root. The forest is Chow and Liu's
+// ("Approximating discrete probability distributions with dependence
+// trees", IEEE Trans. Inf. Theory 14(3), 1968): the spanning forest of
+// greatest total mutual information, over the pairs where one field is a
+// reliable predictor of the other (BestGiven's rule: derived, or RFI at
+// least PredictorMinRFI), each tree rooted at its field of least entropy
+// (ties by name). The sum is then −log2 of a probability of the record,
+// the same wherever a tree is rooted. Pricing each field by its own best
+// predictor, as before, made a cycle of any two fields that predict each
+// other (a level and its message's template): each priced the other at
+// nothing, and an ERROR record among INFO ones was not surprising at all.
 //
 // Against a baseline: where the baseline has a rule G → F (see Rule; the
 // one with F's baseline best predictor as Given if there is one) and the
@@ -130,6 +141,10 @@ func (c *fieldCost) costOf(id, gid uint32) (float64, bool) {
 // surprising returns the k most surprising records of the window.
 func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord {
 	var costs []*fieldCost
+	var parent []int
+	if base == nil {
+		parent = s.SurpriseForest(func(i int) bool { return m.fields[i].text != nil })
+	}
 	for i, f := range m.fields {
 		if s.Fields[i].Kind == Identifier || f.text == nil || s.Fields[i].Kind == Constant && base == nil {
 			continue
@@ -138,7 +153,7 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 		if base != nil {
 			c = m.baselineCost(s, base, i)
 		} else {
-			c = m.windowCost(s, i)
+			c = m.windowCost(s, i, parent[i])
 		}
 		costs = append(costs, c)
 	}
@@ -218,8 +233,96 @@ func (m *Model) surprising(s *Snapshot, base *Profile, k int) []SurprisingRecord
 	return out
 }
 
-// windowCost prices field i by the window's own counts.
-func (m *Model) windowCost(s *Snapshot, i int) *fieldCost {
+// SurpriseForest returns each field's parent in the forest that prices
+// records against the window (see Surprisal), -1 for a root or a field
+// left out: identifiers, constants, and those priced(i) refuses.
+func (s *Snapshot) SurpriseForest(priced func(i int) bool) []int {
+	n := len(s.Fields)
+	parent := make([]int, n)
+	for i := range parent {
+		parent[i] = -1
+	}
+	in := func(i int) bool {
+		k := s.Fields[i].Kind
+		return k != Identifier && k != Constant && priced(i)
+	}
+	type edge struct {
+		a, b int
+		mi   float64
+	}
+	var edges []edge
+	for a := 0; a < n; a++ {
+		for b := a + 1; b < n; b++ {
+			if in(a) && in(b) && s.HasPair(a, b) && (s.predicts(b, a) || s.predicts(a, b)) {
+				edges = append(edges, edge{a, b, s.Mutual(a, b)})
+			}
+		}
+	}
+	// Kruskal's algorithm, most information first; ties by the fields'
+	// places, so that the forest is the same on every run.
+	sort.Slice(edges, func(i, j int) bool {
+		if edges[i].mi != edges[j].mi {
+			return edges[i].mi > edges[j].mi
+		}
+		if edges[i].a != edges[j].a {
+			return edges[i].a < edges[j].a
+		}
+		return edges[i].b < edges[j].b
+	})
+	set := make([]int, n) // union-find: set[i] leads to i's tree's mark
+	for i := range set {
+		set[i] = i
+	}
+	find := func(i int) int {
+		for set[i] != i {
+			set[i] = set[set[i]]
+			i = set[i]
+		}
+		return i
+	}
+	adj := make([][]int, n)
+	for _, e := range edges {
+		if ra, rb := find(e.a), find(e.b); ra != rb {
+			set[ra] = rb
+			adj[e.a] = append(adj[e.a], e.b)
+			adj[e.b] = append(adj[e.b], e.a)
+		}
+	}
+	// Each tree hangs from its field of least entropy.
+	var order []int
+	for i := 0; i < n; i++ {
+		if in(i) {
+			order = append(order, i)
+		}
+	}
+	sort.SliceStable(order, func(x, y int) bool {
+		fx, fy := &s.Fields[order[x]], &s.Fields[order[y]]
+		if fx.Entropy != fy.Entropy {
+			return fx.Entropy < fy.Entropy
+		}
+		return fx.Name < fy.Name
+	})
+	seen := make([]bool, n)
+	for _, root := range order {
+		if seen[root] {
+			continue
+		}
+		seen[root] = true
+		for queue := []int{root}; len(queue) > 0; queue = queue[1:] {
+			for _, g := range adj[queue[0]] {
+				if !seen[g] {
+					seen[g], parent[g] = true, queue[0]
+					queue = append(queue, g)
+				}
+			}
+		}
+	}
+	return parent
+}
+
+// windowCost prices field i by the window's own counts, given field g (its
+// parent in SurpriseForest; none when g < 0).
+func (m *Model) windowCost(s *Snapshot, i, g int) *fieldCost {
 	f := m.fields[i]
 	c := &fieldCost{idx: i, given: -1, marg: make([]float64, len(f.counts))}
 	n := float64(m.st.n)
@@ -231,7 +334,7 @@ func (m *Model) windowCost(s *Snapshot, i int) *fieldCost {
 			c.marg[id] = -math.Log2(float64(f.counts[id]) / n)
 		}
 	}
-	if g := s.Index(s.Fields[i].BestGiven); g >= 0 && s.HasPair(i, g) {
+	if g >= 0 && s.HasPair(i, g) {
 		c.given = g
 		c.pair = m.pairs[m.pairAt[[2]int{min(i, g), max(i, g)}]].m
 		c.givenIsA = g < i
