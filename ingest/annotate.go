@@ -64,7 +64,8 @@ type Because struct {
 // file first) three times: first as a report does, to learn the formats,
 // the companions and the final template groups (the ids it gives are
 // recorded); then, replaying those ids, to count each field's values and
-// each field's values given its best predictor over the whole input; then
+// each field's values given its parent in the pricing forest
+// (model.Snapshot.SurpriseForest) over the whole input; then
 // to write one JSON object per input line, in input order, to w.
 //
 // A record's bits are its surprisal against the whole input, as the
@@ -284,7 +285,8 @@ func (a *annotator) drain(end bool) {
 }
 
 // pricer counts, over the whole input, each priced field's values and its
-// values given its best predictor, then prices records by them.
+// values given its parent in the pricing forest, then prices records by
+// them.
 type pricer struct {
 	fields []pricedField
 	n      float64

@@ -298,7 +298,7 @@ func (v driftView) surprising() ([]string, []driftItem) {
 	}
 	age := v.env.now().Sub(d.Snap.Taken)
 	out := []string{st.Title.Render("SURPRISING RECORDS") + "  " + count(int64(len(ch.Surprising))) + " · measured " +
-		span(max(0, age)) + " ago · " + against + st.Muted.Render(" · bits = Σ −log2 p(value | its best predictor)")}
+		span(max(0, age)) + " ago · " + against + st.Muted.Render(" · bits = Σ −log2 p(value | its predictor)")}
 	if len(ch.Surprising) == 0 {
 		return append(out, st.Muted.Render("  none in the window")), nil
 	}
