@@ -23,7 +23,7 @@ import (
 
 // parallelFormats are the formats whose Parse keeps no state between
 // lines. A format that joins lines (CRI partial lines) must not be listed.
-var parallelFormats = map[string]bool{"json": true, "logfmt": true}
+var parallelFormats = map[string]bool{"json": true, "logfmt": true, "klog": true}
 
 // A batch's records go to the model in one AddBatch, whose passes spread
 // over the cores only for segments large enough (model.parallelMin). The

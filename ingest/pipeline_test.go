@@ -260,3 +260,39 @@ func TestPipelineRedetects(t *testing.T) {
 	}
 	sameFigures(t, got, want)
 }
+
+// TestPipelineEqualsSequentialKlog: klog lines (plain and structured, some
+// not klog) parsed by the pipeline give the snapshot and accounting of the
+// line-by-line read.
+func TestPipelineEqualsSequentialKlog(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	var data bytes.Buffer
+	levels := "IIIIIIWE"
+	for i := 0; i < 6000; i++ {
+		fmt.Fprintf(&data, "%c0314 02:%02d:%02d.%06d %7d berth_controller.go:%d] ", levels[i%len(levels)], i/60%60, i%60, i, 100+i%3, 80+i%5)
+		if i%3 == 0 {
+			fmt.Fprintf(&data, "\"Reconciled\" berth=\"%d\" took=\"%dms\"\n", i%13, i%40)
+		} else {
+			fmt.Fprintf(&data, "berth %d reconciled\n", i%13)
+		}
+		if i%997 == 5 {
+			data.WriteString("\tat quay.Berth.run(Berth.java:12)\nnot klog at all\n")
+		}
+	}
+	path := filepath.Join(t.TempDir(), "k.log")
+	os.WriteFile(path, data.Bytes(), 0o644)
+	run := func(parallel bool) *model.Snapshot {
+		in := readThrough(t, Config{Model: model.Options{Headless: parallel}}, "files", []string{path}, 0, parallel)
+		if in.Snapshot(model.SnapshotOptions{}).Input.Format != "klog" {
+			t.Fatalf("format %s", in.Snapshot(model.SnapshotOptions{}).Input.Format)
+		}
+		s := in.Snapshot(model.SnapshotOptions{})
+		s.Taken = time.Time{}
+		return s
+	}
+	want := run(false)
+	if want.Records != 6000 || want.Input.Rejected != 14 {
+		t.Errorf("reference: %d records, %d rejected", want.Records, want.Input.Rejected)
+	}
+	sameFigures(t, run(true), want)
+}

@@ -7,7 +7,7 @@ import (
 )
 
 // Timestamps at the head of unstructured lines, in the forms services write
-// (forms as commonly seen in JVM, Android, syslog, Apache and RAS logs; the
+// (forms as commonly seen in JVM, Android, syslog, Apache, RAS and glog logs; the
 // list is common practice, no single published source). Each form is an
 // anchored expression for finding it at the start of a header, and Go
 // layouts for reading it. Forms without a year take it from the reference
@@ -47,6 +47,9 @@ var headTimes = []*headTime{
 		layouts: []string{"20060102-15:04:05"}, fixColon: true},
 	{name: "ymd-date", re: regexp.MustCompile(`^\d{4}\.[01]\d\.[0-3]\d\b`),
 		layouts: []string{"2006.01.02"}},
+	// glog and klog's "mmdd hh:mm:ss.uuuuuu" (the klog format's time).
+	{name: "mmdd", re: regexp.MustCompile(`^[01]\d[0-3]\d \d\d:\d\d:\d\d(?:\.\d{1,9})?`),
+		layouts: []string{"0102 15:04:05"}, noYear: true},
 }
 
 // matchHeadTime finds a timestamp at the start of b (optionally in square

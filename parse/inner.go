@@ -25,6 +25,21 @@ func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool 
 	case in.logfmt.Sniff(msg) >= 0.5:
 		ok = in.logfmt.Parse(msg, &in.scratch) == nil
 	}
+	return in.copyOut(rec, key, msg, ok, outer)
+}
+
+// addPairs is add for msg known to be key=value pairs (klog's structured
+// arguments, where one pair is as sure as many): read as logfmt whatever
+// its score.
+func (in *inner) addPairs(rec *Record, key string, msg []byte, outer ...string) bool {
+	in.scratch.Reset()
+	ok := in.logfmt.Parse(msg, &in.scratch) == nil
+	return in.copyOut(rec, key, msg, ok, outer)
+}
+
+// copyOut appends the fields read into in.scratch to rec (or key=msg when
+// the read failed or gave none), prefixing keys of outer.
+func (in *inner) copyOut(rec *Record, key string, msg []byte, ok bool, outer []string) bool {
 	if !ok || in.scratch.Len() == 0 {
 		rec.AddKV(key, msg)
 		return false
