@@ -92,26 +92,51 @@ func matchHeadTimeOf(b []byte, hs []*headTime, base int) (form int, ts []byte, n
 
 // parseHeadTime reads s in any of the forms above.
 func parseHeadTime(s string, ref time.Time) (int64, bool) {
+	t, _, ok := parseHeadTimeFrom(s, ref, -1)
+	return t, ok
+}
+
+// parseHeadTimeFrom is parseHeadTime trying form first (when ≥ 0) before
+// the others; it returns the form that read s. A stream's times keep one
+// form, and trying a dozen expressions on each was most of the cost of
+// reading a header log (TimeFinder keeps the last form).
+func parseHeadTimeFrom(s string, ref time.Time, first int) (int64, int, bool) {
 	s = strings.TrimSuffix(strings.TrimSuffix(strings.TrimPrefix(s, "["), ","), "]")
-	for _, h := range headTimes {
-		m := h.re.FindString(s)
-		if m == "" || len(m) != len(s) {
+	if first >= 0 {
+		if t, ok := headTimes[first].read(s, ref); ok {
+			return t, first, true
+		}
+	}
+	for i, h := range headTimes {
+		if i == first {
 			continue
 		}
-		if h.fixColon && strings.Count(s, ":") == 3 {
-			k := strings.LastIndexByte(s, ':')
-			s = s[:k] + "." + s[k+1:]
+		if t, ok := h.read(s, ref); ok {
+			return t, i, true
 		}
-		for _, l := range h.layouts {
-			t, err := time.Parse(l, s)
-			if err != nil {
-				continue
-			}
-			if h.noYear {
-				t = withYear(t, ref)
-			}
-			return t.UnixNano(), true
+	}
+	return 0, -1, false
+}
+
+// read reads s in form h.
+func (h *headTime) read(s string, ref time.Time) (int64, bool) {
+	m := h.re.FindString(s)
+	if m == "" || len(m) != len(s) {
+		return 0, false
+	}
+	if h.fixColon && strings.Count(s, ":") == 3 {
+		k := strings.LastIndexByte(s, ':')
+		s = s[:k] + "." + s[k+1:]
+	}
+	for _, l := range h.layouts {
+		t, err := time.Parse(l, s)
+		if err != nil {
+			continue
 		}
+		if h.noYear {
+			t = withYear(t, ref)
+		}
+		return t.UnixNano(), true
 	}
 	return 0, false
 }
@@ -125,4 +150,67 @@ func withYear(t, ref time.Time) time.Time {
 		at = time.Date(y-1, t.Month(), t.Day(), t.Hour(), t.Minute(), t.Second(), t.Nanosecond(), time.UTC)
 	}
 	return at
+}
+
+// headMinute remembers, for the last header time read the slow way, its
+// text up to the seconds and the time of that minute: a stream's next
+// times mostly share that text, and are then the minute plus their
+// seconds and fraction, read by hand. Only "…:ss" and "…:ss.fff" (or
+// ",fff", up to 9 digits) ends take this way, which every form above
+// reads alike; others (a year or a zone after the time) read the slow way.
+type headMinute struct {
+	prefix string
+	base   int64
+}
+
+// splitSeconds cuts v into its text up to "ss", the seconds and the
+// fraction in nanoseconds.
+func splitSeconds(v []byte) (prefix []byte, sec, frac int64, ok bool) {
+	i := len(v) - 1
+	for i >= 0 && isDigit(v[i]) {
+		i--
+	}
+	end := len(v)
+	if i >= 0 && (v[i] == '.' || v[i] == ',') {
+		digits := v[i+1:]
+		if len(digits) == 0 || len(digits) > 9 {
+			return nil, 0, 0, false
+		}
+		scale := int64(1)
+		for k := len(digits); k < 9; k++ {
+			scale *= 10
+		}
+		for _, c := range digits {
+			frac = frac*10 + int64(c-'0')
+		}
+		frac *= scale
+		end = i
+	}
+	if end < 3 || v[end-3] != ':' || !isDigit(v[end-2]) || !isDigit(v[end-1]) {
+		return nil, 0, 0, false
+	}
+	sec = int64(v[end-2]-'0')*10 + int64(v[end-1]-'0')
+	if sec > 59 {
+		return nil, 0, 0, false
+	}
+	return v[:end-2], sec, frac, true
+}
+
+// read gives v's time if v is in the remembered minute.
+func (c *headMinute) read(v []byte) (int64, bool) {
+	if c.prefix == "" {
+		return 0, false
+	}
+	p, sec, frac, ok := splitSeconds(v)
+	if !ok || string(p) != c.prefix {
+		return 0, false
+	}
+	return c.base + sec*1e9 + frac, true
+}
+
+// learn remembers the minute of v, read the slow way as t.
+func (c *headMinute) learn(v []byte, t int64) {
+	if p, sec, frac, ok := splitSeconds(v); ok {
+		c.prefix, c.base = string(p), t-sec*1e9-frac
+	}
 }

@@ -56,6 +56,10 @@ type TimeFinder struct {
 	tried  int
 	ref    time.Time
 	minute minuteCache // for the rfc3339 layout
+	// headForm is the header form (headTimes) that read the last time,
+	// tried first; the zero TimeFinder tries form 0 first, as before.
+	headForm int
+	headMin  headMinute
 }
 
 // timeLayout is one timestamp format.
@@ -70,13 +74,15 @@ type timeLayout struct {
 	fast func(b []byte) (ns int64, done bool)
 }
 
+var headerLayout = &timeLayout{name: "header", parse: parseHeadTime}
+
 // timeLayouts are tried in order on each candidate value.
 var timeLayouts = []*timeLayout{
 	rfc3339Layout,
 	{name: "access", strong: true, parse: parseAccess},
 	{name: "syslog", strong: true, parse: parseSyslog},
 	// The forms line headers use (header_time.go), under time keys only.
-	{name: "header", parse: parseHeadTime},
+	headerLayout,
 	{name: "epoch", parse: func(s string, _ time.Time) (int64, bool) { return parseEpoch(s) }},
 }
 
@@ -204,6 +210,16 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 			if t, done := tf.layout.fast(v); done {
 				return t, true
 			}
+		} else if tf.layout == headerLayout {
+			if t, ok := tf.headMin.read(v); ok {
+				return t, true
+			}
+			t, form, ok := parseHeadTimeFrom(string(v), tf.ref, tf.headForm)
+			if ok {
+				tf.headForm = form
+				tf.headMin.learn(v, t)
+			}
+			return t, ok
 		}
 		return tf.layout.parse(string(v), tf.ref)
 	}
