@@ -232,6 +232,19 @@ func (fl *Follower) begin() error {
 	}
 	fl.cur = c
 	fl.note("following " + fl.path)
+	if off > 0 {
+		// Lines are numbered as in the file, so that "line 8,307" is the
+		// line an editor shows, not the 8,307th read.
+		n, ok, err := countLines(c.f, off, lineCountMax)
+		switch {
+		case err != nil:
+			fl.note(fmt.Sprintf("following %s; line numbers count from byte %d, where following began (%v)", fl.path, off, err))
+		case !ok:
+			fl.note(fmt.Sprintf("following %s; line numbers count from byte %d, where following began (the %d MB before were not counted)", fl.path, off, off>>20))
+		default:
+			c.num = n
+		}
+	}
 	return nil
 }
 

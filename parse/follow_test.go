@@ -337,15 +337,22 @@ func TestFollowStartPosition(t *testing.T) {
 		opt     FollowOptions
 		want    []string
 	}{
-		{"end", "a\nb\nc\n", FollowOptions{}, []string{"new"}},
-		{"end, half-written last line read whole", "a\nb\nc", FollowOptions{}, []string{"cnew"}},
-		{"lines 2", "a\nb\nc\n", FollowOptions{Lines: 2}, []string{"b", "c", "new"}},
-		{"lines more than the file", "a\nb\n", FollowOptions{Lines: 9}, []string{"a", "b", "new"}},
-		{"from start", "a\nb\n", FollowOptions{FromStart: true}, []string{"a", "b", "new"}},
-		{"empty file", "", FollowOptions{Lines: 3}, []string{"new"}},
+		{"end", "a\nb\nc\n", FollowOptions{}, []string{"new#4"}},
+		{"end, half-written last line read whole", "a\nb\nc", FollowOptions{}, []string{"cnew#3"}},
+		{"lines 2", "a\nb\nc\n", FollowOptions{Lines: 2}, []string{"b#2", "c#3", "new#4"}},
+		{"lines more than the file", "a\nb\n", FollowOptions{Lines: 9}, []string{"a#1", "b#2", "new#3"}},
+		{"from start", "a\nb\n", FollowOptions{FromStart: true}, []string{"a#1", "b#2", "new#3"}},
+		{"empty file", "", FollowOptions{Lines: 3}, []string{"new#1"}},
+		// Past lineCountMax (set to 5 bytes below) the lines before are not
+		// counted, and the note says so.
+		{"end, too far to count", "a\nb\nc\n", FollowOptions{}, []string{"new#1"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
+			if strings.Contains(tt.name, "too far") {
+				defer func(m int64) { lineCountMax = m }(lineCountMax)
+				lineCountMax = 5
+			}
 			path := filepath.Join(t.TempDir(), "f.log")
 			if err := os.WriteFile(path, []byte(tt.content), 0o644); err != nil {
 				t.Fatal(err)
@@ -370,11 +377,14 @@ func TestFollowStartPosition(t *testing.T) {
 				if err != nil {
 					break
 				}
-				got = append(got, string(l.Text))
+				got = append(got, string(l.Text)+"#"+strconv.FormatInt(l.Num, 10))
 			}
 			<-first
 			if strings.Join(got, "|") != strings.Join(tt.want, "|") {
 				t.Errorf("got %q, want %q", got, tt.want)
+			}
+			if note := fl.Status().Note; strings.Contains(tt.name, "too far") != strings.Contains(note, "line numbers count from byte 6") {
+				t.Errorf("note %q", note)
 			}
 		})
 	}
