@@ -2,6 +2,7 @@ package parse
 
 import (
 	"errors"
+	"fmt"
 	"testing"
 )
 
@@ -111,7 +112,33 @@ func TestPrefixed(t *testing.T) {
 			want: map[string]string{"time": "2025-03-02T06:00:00Z", "level": "DEBUG", "msg": "misting valve 4 closed"}},
 		{name: "no level", line: `2025-03-02T06:00:00Z stdout F hi`, reject: "level"},
 		{name: "no time", line: `INFO {"k":"v"}`, reject: "timestamp"},
+		// A platform's gathered output, "TIME app[proc]: body" (the shape of
+		// a PaaS router's lines, written from memory).
+		{name: "source tag, logfmt", line: `2025-03-02T06:00:00.120431+00:00 router[web.2]: at=info zone=B status=200`,
+			want: map[string]string{"time": "2025-03-02T06:00:00.120431+00:00", "app": "router", "proc": "web.2", "at": "info", "zone": "B", "status": "200"}},
+		{name: "source tag, plain text", line: `2025-03-02T06:00:00Z app[worker.1]: misting valve 4 closed`,
+			want: map[string]string{"time": "2025-03-02T06:00:00Z", "app": "app", "proc": "worker.1", "msg": "misting valve 4 closed"}},
+		{name: "no level, logfmt", line: `2025-03-02T06:00:00Z zone=B rh=93`,
+			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B", "rh": "93"}},
+		{name: "no level, JSON", line: `2025-03-02T06:00:00Z {"zone":"B"}`,
+			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B"}},
+		{name: "no level, plain text", line: `2025-03-02T06:00:00Z misting valve 4 closed`, reject: "no level or source"},
+		{name: "empty tag", line: `2025-03-02T06:00:00Z [x]: hi`, reject: "no level or source"},
 	})
+}
+
+// TestLogfmtAfterTimestamp: lines of a timestamp, a source and logfmt
+// pairs detect as prefixed, with one field per key: read as logfmt they
+// made each line's timestamp a field name of its own.
+func TestLogfmtAfterTimestamp(t *testing.T) {
+	var sample [][]byte
+	for i := 0; i < 40; i++ {
+		sample = append(sample, []byte(fmt.Sprintf("2025-03-02T06:%02d:%02d.%06d+00:00 router[web.%d]: at=info path=\"/v1/zones/%d\" status=200 service=%dms", i/60, i%60, i, i%3, i%7, i%40)))
+	}
+	d, err := Detect(sample)
+	if err != nil || d.Format.Name() != "prefixed" {
+		t.Fatalf("detected %v (%v)", d.Format, err)
+	}
 }
 
 func TestPattern(t *testing.T) {

@@ -28,6 +28,15 @@ func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool 
 	return in.copyOut(rec, key, msg, ok, outer)
 }
 
+// structured says whether add would read msg as JSON or logfmt.
+func (in *inner) structured(msg []byte) bool {
+	if len(msg) >= 2 && msg[0] == '{' {
+		in.scratch.Reset()
+		return in.json.Parse(msg, &in.scratch) == nil && in.scratch.Len() > 0
+	}
+	return in.logfmt.Sniff(msg) >= 0.5
+}
+
 // addPairs is add for msg known to be key=value pairs (klog's structured
 // arguments, where one pair is as sure as many): read as logfmt whatever
 // its score.

@@ -2,16 +2,23 @@ package parse
 
 func init() { Register("prefixed", func() Format { return &Prefixed{} }) }
 
-// Prefixed reads lines with a timestamp and a level in front of a JSON
-// object or logfmt pairs, as many logging libraries write them:
+// Prefixed reads lines with a timestamp, and a level or a source, in front
+// of a JSON object or logfmt pairs, as many logging libraries and
+// platforms write them:
 //
 //	2025-03-02T06:00:00Z INFO {"zone":"B","rh":71}
 //	2025-03-02 06:00:00.120 [warn] zone=B rh=93
+//	2025-03-02T06:00:00.120+00:00 router[web.2]: at=info zone=B status=200
+//	2025-03-02T06:00:00Z zone=B rh=93
 //
 // The timestamp is RFC 3339, or a date and a time with a space between;
 // the level is one of the usual words (any case), bare, in brackets or with
-// a colon. Fields: time, level, and the body's own fields; a body that is
-// neither JSON nor logfmt becomes the field msg.
+// a colon; a source is "app[proc]:", as platforms that gather many
+// processes' output write it (fields app and proc). Fields: time, level or
+// app and proc, and the body's own fields; a body that is neither JSON nor
+// logfmt becomes the field msg. With neither a level nor a source the body
+// must be JSON or logfmt: read as logfmt alone, the timestamp would be a
+// key of its own, a new field on every line.
 type Prefixed struct {
 	time    []byte
 	inner   inner
@@ -55,24 +62,55 @@ func (p *Prefixed) parse(line []byte, rec *Record) (structured bool, err error) 
 	for len(rest) > 0 && rest[0] == ' ' {
 		rest = rest[1:]
 	}
-	lv, rest, _ := token(rest)
+	word, after, _ := token(rest)
+	lv := word
 	if n := len(lv); n >= 2 && lv[0] == '[' && lv[n-1] == ']' {
 		lv = lv[1 : n-1]
 	} else if n >= 2 && lv[n-1] == ':' {
 		lv = lv[:n-1]
 	}
-	if !isLevel(lv) {
-		return false, reject("no level after the timestamp")
+	app, proc, tagged := sourceTag(word)
+	switch {
+	case isLevel(lv):
+		rest = after
+	case tagged:
+		rest = after
+	case !p.inner.structured(rest):
+		return false, reject("no level or source after the timestamp, and no JSON or logfmt")
 	}
 	for len(rest) > 0 && rest[0] == ' ' {
 		rest = rest[1:]
 	}
 	rec.AddKV("time", ts)
-	rec.AddKV("level", lv)
+	outer := []string{"time", "level"}
+	switch {
+	case isLevel(lv):
+		rec.AddKV("level", lv)
+	case tagged:
+		rec.AddKV("app", app)
+		rec.AddKV("proc", proc)
+		outer = []string{"time", "app", "proc"}
+	}
 	if len(rest) == 0 {
 		return false, nil
 	}
-	return p.inner.add(rec, "msg", rest, "time", "level"), nil
+	return p.inner.add(rec, "msg", rest, outer...), nil
+}
+
+// sourceTag reads "app[proc]:", a process's name and instance.
+func sourceTag(w []byte) (app, proc []byte, ok bool) {
+	n := len(w)
+	if n < 5 || w[n-1] != ':' || w[n-2] != ']' {
+		return nil, nil, false
+	}
+	i := 0
+	for i < n && w[i] != '[' {
+		i++
+	}
+	if i == 0 || i >= n-3 {
+		return nil, nil, false
+	}
+	return w[:i], w[i+1 : n-2], true
 }
 
 // dateT returns the line's first 19 bytes with the space between date and
