@@ -122,6 +122,8 @@ func TestPrefixed(t *testing.T) {
 			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B", "rh": "93"}},
 		{name: "no level, JSON", line: `2025-03-02T06:00:00Z {"zone":"B"}`,
 			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B"}},
+		{name: "Go log date, logfmt", line: `2025/03/02 06:00:00 level=info msg="valve closed" zone=B`,
+			want: map[string]string{"time": "2025/03/02 06:00:00", "level": "info", "msg": "valve closed", "zone": "B"}},
 		{name: "no level, plain text", line: `2025-03-02T06:00:00Z misting valve 4 closed`, reject: "no level or source"},
 		{name: "empty tag", line: `2025-03-02T06:00:00Z [x]: hi`, reject: "no level or source"},
 	})

@@ -11,7 +11,8 @@ func init() { Register("prefixed", func() Format { return &Prefixed{} }) }
 //	2025-03-02T06:00:00.120+00:00 router[web.2]: at=info zone=B status=200
 //	2025-03-02T06:00:00Z zone=B rh=93
 //
-// The timestamp is RFC 3339, or a date and a time with a space between;
+// The timestamp is RFC 3339, or a date (with '-' or, as Go's log package
+// writes it, '/') and a time with a space between;
 // the level is one of the usual words (any case), bare, in brackets or with
 // a colon; a source is "app[proc]:", as platforms that gather many
 // processes' output write it (fields app and proc). Fields: time, level or
@@ -82,10 +83,11 @@ func (p *Prefixed) parse(line []byte, rec *Record) (structured bool, err error) 
 		rest = rest[1:]
 	}
 	rec.AddKV("time", ts)
-	outer := []string{"time", "level"}
+	outer := []string{"time"}
 	switch {
 	case isLevel(lv):
 		rec.AddKV("level", lv)
+		outer = []string{"time", "level"}
 	case tagged:
 		rec.AddKV("app", app)
 		rec.AddKV("proc", proc)
@@ -118,6 +120,10 @@ func sourceTag(w []byte) (app, proc []byte, ok bool) {
 func (p *Prefixed) dateT(line []byte) []byte {
 	p.time = append(p.time[:0], line[:19]...)
 	p.time[10] = 'T'
+	if p.time[4] == '/' && p.time[7] == '/' {
+		// Go's log package: "2006/01/02 15:04:05".
+		p.time[4], p.time[7] = '-', '-'
+	}
 	return p.time
 }
 
