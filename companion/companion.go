@@ -205,7 +205,9 @@ func (s *Set) Merge(o *Set) []Companion {
 
 // freeText says whether a field reads as free text.
 func freeText(fs *fieldSample) bool {
-	if parse.IsTimeKey(fs.name) || fs.numeric {
+	// log.time (an inner line's own time, renamed) is a time as time is.
+	last := fs.name[strings.LastIndexByte(fs.name, '.')+1:]
+	if parse.IsTimeKey(fs.name) || parse.IsTimeKey(last) || fs.numeric {
 		return false
 	}
 	if isMessageKey(fs.name) {

@@ -6,9 +6,11 @@ import (
 	"math/rand/v2"
 	"slices"
 	"strconv"
+	"strings"
 	"testing"
 
 	"bitsift/model"
+	"bitsift/parse"
 )
 
 func TestBucketLabels(t *testing.T) {
@@ -235,5 +237,27 @@ func TestShortMemoCollisions(t *testing.T) {
 				t.Fatalf("round %d: %q gave %q, want %q", round, v, got, want)
 			}
 		}
+	}
+}
+
+// TestNoTemplateForInnerTimes: an inner line's own time, renamed log.time
+// beside the outer line's (a klog line in a CRI file), gets no template,
+// as a time field of the usual names does not; a message beside it does.
+func TestNoTemplateForInnerTimes(t *testing.T) {
+	var sample []*parse.Record
+	for i := 0; i < 200; i++ {
+		rec := &parse.Record{}
+		rec.AddString("time", fmt.Sprintf("2026-03-14T02:11:%02d.%06dZ", i%60, i))
+		rec.AddString("log.time", fmt.Sprintf("0314 02:11:%02d.%06d", i%60, i))
+		rec.AddString("note", fmt.Sprintf("berth %d reconciled in %d ms", i%13, i%40))
+		sample = append(sample, rec)
+	}
+	s := Choose(sample, Options{})
+	var names []string
+	for _, c := range s.List() {
+		names = append(names, c.Name())
+	}
+	if got := strings.Join(names, ","); got != "note"+TemplateSuffix {
+		t.Errorf("companions %s, want note%s only", got, TemplateSuffix)
 	}
 }

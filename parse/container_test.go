@@ -13,6 +13,10 @@ func TestCRI(t *testing.T) {
 	runParseCases(t, &CRI{}, []parseCase{
 		{name: "full line, text", line: "2016-10-06T00:17:09.669794202Z stdout F log content 1",
 			want: map[string]string{"time": "2016-10-06T00:17:09.669794202Z", "stream": "stdout", "log": "log content 1"}},
+		// A Kubernetes component's klog line in its pod's log file.
+		{name: "full line, klog", line: `2016-10-06T00:17:09.669794202Z stderr F I1006 00:17:09.669794       1 controller.go:88] "Synced" berth="12"`,
+			want: map[string]string{"time": "2016-10-06T00:17:09.669794202Z", "stream": "stderr", "level": "I", "log.time": "1006 00:17:09.669794",
+				"thread": "1", "source": "controller.go:88", "msg": "Synced", "berth": "12"}},
 		{name: "inner JSON with its own time",
 			line: `2025-03-02T06:00:00.5Z stderr F {"time":"x","zone":"B","rh":71}`,
 			want: map[string]string{"time": "2025-03-02T06:00:00.5Z", "stream": "stderr", "log.time": "x", "zone": "B", "rh": "71"}},
@@ -122,6 +126,8 @@ func TestPrefixed(t *testing.T) {
 			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B", "rh": "93"}},
 		{name: "no level, JSON", line: `2025-03-02T06:00:00Z {"zone":"B"}`,
 			want: map[string]string{"time": "2025-03-02T06:00:00Z", "zone": "B"}},
+		{name: "kubectl --timestamps, klog", line: `2025-03-02T06:00:00.120431Z W0302 06:00:00.120431   7 zone.go:12] vent stuck`,
+			want: map[string]string{"time": "2025-03-02T06:00:00.120431Z", "level": "W", "log.time": "0302 06:00:00.120431", "thread": "7", "source": "zone.go:12", "msg": "vent stuck"}},
 		{name: "Go log date, logfmt", line: `2025/03/02 06:00:00 level=info msg="valve closed" zone=B`,
 			want: map[string]string{"time": "2025/03/02 06:00:00", "level": "info", "msg": "valve closed", "zone": "B"}},
 		{name: "no level, plain text", line: `2025-03-02T06:00:00Z misting valve 4 closed`, reject: "no level or source"},

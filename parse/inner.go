@@ -6,11 +6,26 @@ package parse
 const innerPrefix = "log."
 
 // inner reads the message carried inside another format (a container line,
-// a prefixed line) again as JSON or logfmt, when it is one of those.
+// a prefixed line) again as JSON, klog or logfmt, when it is one of those.
 type inner struct {
 	json    JSON
 	logfmt  Logfmt
+	klog    *Klog // made on first use: a Klog holds an inner of its own
 	scratch Record
+}
+
+// klogLine reads msg as a klog line into in.scratch, if it is one (a
+// Kubernetes component's output inside a CRI or docker line, or behind
+// kubectl logs --timestamps).
+func (in *inner) klogLine(msg []byte) bool {
+	if len(msg) < 21 || !klogLevel(msg[0]) || !isDigit(msg[1]) {
+		return false
+	}
+	if in.klog == nil {
+		in.klog = &Klog{}
+	}
+	in.scratch.Reset()
+	return in.klog.Parse(msg, &in.scratch) == nil
 }
 
 // add appends the fields of msg to rec: the fields of msg read as JSON or
@@ -22,7 +37,10 @@ func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool 
 	switch {
 	case len(msg) >= 2 && msg[0] == '{':
 		ok = in.json.Parse(msg, &in.scratch) == nil
+	case in.klogLine(msg):
+		ok = true
 	case in.logfmt.Sniff(msg) >= 0.5:
+		in.scratch.Reset()
 		ok = in.logfmt.Parse(msg, &in.scratch) == nil
 	}
 	return in.copyOut(rec, key, msg, ok, outer)
@@ -34,7 +52,7 @@ func (in *inner) structured(msg []byte) bool {
 		in.scratch.Reset()
 		return in.json.Parse(msg, &in.scratch) == nil && in.scratch.Len() > 0
 	}
-	return in.logfmt.Sniff(msg) >= 0.5
+	return in.klogLine(msg) || in.logfmt.Sniff(msg) >= 0.5
 }
 
 // addPairs is add for msg known to be key=value pairs (klog's structured
