@@ -122,7 +122,10 @@ func (m *Model) buildProfile(s *Snapshot) *Profile {
 	for _, pr := range m.pairs {
 		for _, dir := range [][2]int{{pr.a, pr.b}, {pr.b, pr.a}} {
 			t, g := dir[0], dir[1]
-			if !s.Determines(g, t) {
+			if !s.Determines(g, t) || m.fields[g].text == nil {
+				// A Given whose values are kept only as hashes (a field
+				// that looked like an identifier once) would list every
+				// value as "", a mapping no reader can follow.
 				continue
 			}
 			p.Rules = append(p.Rules, m.ruleOf(s, pr, t, g))
@@ -140,7 +143,10 @@ func (m *Model) buildProfile(s *Snapshot) *Profile {
 
 // ruleOf reads the mapping Given → Target off a pair table.
 func (m *Model) ruleOf(s *Snapshot, pr pair, t, g int) Rule {
-	type best struct{ f, c, n int32 }
+	type best struct {
+		f, c, n int32
+		g       uint32
+	}
 	by := map[uint32]*best{}
 	pr.m.each(func(k uint64, c int32) {
 		ia, ib := uint32(k>>32), uint32(k)
@@ -153,7 +159,7 @@ func (m *Model) ruleOf(s *Snapshot, pr pair, t, g int) Rule {
 		}
 		b := by[gi]
 		if b == nil {
-			b = &best{}
+			b = &best{g: gi}
 			by[gi] = b
 		}
 		b.n += c
@@ -162,17 +168,28 @@ func (m *Model) ruleOf(s *Snapshot, pr pair, t, g int) Rule {
 		}
 	})
 	r := Rule{Target: m.fields[t].name, Given: m.fields[g].name, Bits: round9(s.Cond(t, g)), RFI: round9(s.RFI(t, g))}
-	for gi, b := range by {
+	// In an order of their own, not the map's: ties of count and text
+	// (values whose text is not kept) went out in a different order on
+	// each run.
+	bs := make([]*best, 0, len(by))
+	for _, b := range by {
+		bs = append(bs, b)
+	}
+	sort.Slice(bs, func(i, j int) bool { return bs[i].g < bs[j].g })
+	for _, b := range bs {
 		r.Map = append(r.Map, RuleValue{
-			Given: m.valueText(g, gi), Target: m.valueText(t, uint32(b.f)),
+			Given: m.valueText(g, b.g), Target: m.valueText(t, uint32(b.f)),
 			Absent: b.f == absent, Count: int(b.n),
 		})
 	}
-	sort.Slice(r.Map, func(i, j int) bool {
+	sort.SliceStable(r.Map, func(i, j int) bool {
 		if r.Map[i].Count != r.Map[j].Count {
 			return r.Map[i].Count > r.Map[j].Count
 		}
-		return r.Map[i].Given < r.Map[j].Given
+		if r.Map[i].Given != r.Map[j].Given {
+			return r.Map[i].Given < r.Map[j].Given
+		}
+		return r.Map[i].Target < r.Map[j].Target
 	})
 	if len(r.Map) > ProfileRuleValues {
 		r.Map, r.Truncated = r.Map[:ProfileRuleValues], true
