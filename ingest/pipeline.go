@@ -22,8 +22,32 @@ import (
 // keep nothing from one line to the next can be parsed out of order.
 
 // parallelFormats are the formats whose Parse keeps no state between
-// lines. A format that joins lines (CRI partial lines) must not be listed.
-var parallelFormats = map[string]bool{"json": true, "logfmt": true, "klog": true}
+// lines (each has scratch buffers only), made afresh for each worker by
+// name. A format that joins lines (CRI partial lines) must not be listed.
+// A format that keeps what it learned (header) or was made with
+// (pattern) implements parse.Cloner, and each worker parses with a clone.
+var parallelFormats = map[string]bool{"json": true, "logfmt": true, "klog": true,
+	"access": true, "rfc3164": true, "rfc5424": true, "docker": true, "prefixed": true}
+
+// parallelFormat says whether the pipeline's workers can parse f.
+func parallelFormat(f parse.Format) bool {
+	if _, ok := f.(parse.Cloner); ok {
+		return true
+	}
+	return parallelFormats[f.Name()]
+}
+
+// workerFormat is a worker's own copy of f.
+func workerFormat(f parse.Format) parse.Format {
+	if c, ok := f.(parse.Cloner); ok {
+		return c.Clone()
+	}
+	w, err := parse.ByName(f.Name())
+	if err != nil {
+		panic("ingest: format " + f.Name() + " vanished from the registry")
+	}
+	return w
+}
 
 // A batch's records go to the model in one AddBatch, whose passes spread
 // over the cores only for segments large enough (model.parallelMin). The
@@ -81,7 +105,7 @@ func (r *batchReader) fill(ctx context.Context, b *batch) error {
 
 // settled says whether the remaining lines can go to the pipeline.
 func (in *Ingester) settled() bool {
-	return in.started && in.format != nil && parallelFormats[in.format.Name()] && !in.det.perFile &&
+	return in.started && in.format != nil && parallelFormat(in.format) && !in.det.perFile &&
 		(in.times.Key() != "" || in.model.Seen() > timeFinderTries)
 }
 
@@ -132,10 +156,7 @@ func (in *Ingester) pipeline(ctx context.Context, src parse.Source) error {
 	format := in.format
 	var reformatted atomic.Bool
 	for range workers {
-		f, err := parse.ByName(in.format.Name())
-		if err != nil {
-			panic("ingest: format " + in.format.Name() + " vanished from the registry")
-		}
+		f := workerFormat(in.format)
 		times := in.times // settled: every copy decides alike
 		// The companions are chosen by now and do not change while the
 		// pipeline runs (a read of several files, which may add some,

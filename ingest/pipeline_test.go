@@ -17,6 +17,7 @@ import (
 	"bitsift/demo"
 	"bitsift/model"
 	"bitsift/parse"
+	"bitsift/testdata/labelled"
 )
 
 // seqSource hides a FileSource's type, so that ReadSource reads it line by
@@ -295,4 +296,68 @@ func TestPipelineEqualsSequentialKlog(t *testing.T) {
 		t.Errorf("reference: %d records, %d rejected", want.Records, want.Input.Rejected)
 	}
 	sameFigures(t, run(true), want)
+}
+
+// TestPipelineEqualsSequentialFormats: each format the pipeline now parses
+// in parallel (by name, or by a clone of what it learned: header, pattern)
+// gives, through the pipeline, the snapshot and accounting of the
+// line-by-line read, on lines of its shape with a few that are not.
+func TestPipelineEqualsSequentialFormats(t *testing.T) {
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(4))
+	const n = 5000
+	methods, paths := []string{"GET", "GET", "POST"}, []string{"/v1/berths", "/v1/tides", "/v1/berths/12"}
+	gen := map[string]func(i int) string{
+		"access": func(i int) string {
+			return fmt.Sprintf(`10.0.%d.%d - - [14/Mar/2026:02:%02d:%02d +0000] "%s %s HTTP/1.1" %d %d "-" "probe/%d"`,
+				i%3, i%200, i/60%60, i%60, methods[i%3], paths[i%3], []int{200, 200, 404, 503}[i%4], 100+i%900, i%5)
+		},
+		"rfc3164": func(i int) string {
+			return fmt.Sprintf("<%d>Mar 14 02:%02d:%02d quay-%d berthd[%d]: berth %d assigned", 13+i%3, i/60%60, i%60, i%4, 100+i%7, i%13)
+		},
+		"rfc5424": func(i int) string {
+			return fmt.Sprintf(`<%d>1 2026-03-14T02:%02d:%02d.%03dZ quay-%d berthd %d ASSIGN [quay@32473 berth="%d"] assigned`, 133+i%3, i/60%60, i%60, i%1000, i%4, 100+i%7, i%13)
+		},
+		"docker": func(i int) string {
+			return fmt.Sprintf(`{"log":"level=%s berth=%d\n","stream":"stdout","time":"2026-03-14T02:%02d:%02d.%09dZ"}`, []string{"info", "warn"}[i%2], i%13, i/60%60, i%60, i)
+		},
+		"prefixed": func(i int) string {
+			return fmt.Sprintf("2026-03-14T02:%02d:%02d.%06d+00:00 router[web.%d]: at=info path=%s status=%d", i/60%60, i%60, i, i%3, paths[i%3], []int{200, 200, 503}[i%3])
+		},
+	}
+	hdfs, _ := labelled.Generate("hdfs", n, 3)
+	gen["header"] = func(i int) string { return hdfs[i] }
+	gen["pattern"] = func(i int) string { return fmt.Sprintf("%s %s %d", methods[i%3], paths[i%3], i%7) }
+	for name, line := range gen {
+		t.Run(name, func(t *testing.T) {
+			var data bytes.Buffer
+			for i := 0; i < n; i++ {
+				data.WriteString(line(i) + "\n")
+				if i%997 == 5 {
+					data.WriteString("\x01 not a line of this shape\n")
+				}
+			}
+			path := filepath.Join(t.TempDir(), name+".log")
+			os.WriteFile(path, data.Bytes(), 0o644)
+			cfg := Config{}
+			if name == "pattern" {
+				cfg.Pattern = `^(?P<method>\S+) (?P<path>\S+) (?P<n>\d+)$`
+			}
+			run := func(parallel bool) *model.Snapshot {
+				c := cfg
+				c.Model.Headless = parallel
+				in := readThrough(t, c, "files", []string{path}, 0, parallel)
+				if parallel && !in.settled() {
+					t.Fatal("the pipeline did not take this format")
+				}
+				s := in.Snapshot(model.SnapshotOptions{})
+				s.Taken = time.Time{}
+				return s
+			}
+			want := run(false)
+			if want.Input.Format != name || want.Records != n {
+				t.Fatalf("reference: format %s, %d records, %d rejected", want.Input.Format, want.Records, want.Input.Rejected)
+			}
+			sameFigures(t, run(true), want)
+		})
+	}
 }

@@ -44,6 +44,15 @@ type Joiner interface {
 	Flush(rec *Record) bool
 }
 
+// Cloner is a Format whose Parse keeps nothing from one line to the next
+// but holds what it was made or learned with (the header a Header learned,
+// a Pattern's expression): Clone gives a copy for another goroutine, which
+// parses as this one does, sharing nothing it writes.
+type Cloner interface {
+	Format
+	Clone() Format
+}
+
 // reject makes a Parse error with the given reason.
 func reject(reason string) error { return &RejectError{Reason: reason} }
 

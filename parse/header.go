@@ -127,6 +127,12 @@ func (h *Header) Sniff(line []byte) float64 {
 	return 0.6
 }
 
+// Clone implements Cloner: the learned header, shared (Parse only reads
+// it), with scratch buffers of its own.
+func (h *Header) Clone() Format {
+	return &Header{slots: h.slots, pipe: h.pipe, learned: h.learned}
+}
+
 // Learn implements Learner.
 func (h *Header) Learn(sample [][]byte) {
 	h.learn(sample)

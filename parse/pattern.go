@@ -14,6 +14,10 @@ type Pattern struct {
 	loc   []int
 }
 
+// Clone implements Cloner: the compiled expression is shared (a Regexp is
+// safe for concurrent use), the match buffer is not.
+func (p *Pattern) Clone() Format { return &Pattern{re: p.re, names: p.names} }
+
 // NewPattern compiles expr, which must have at least one named group
 // ((?P<name>...) or (?<name>...)).
 func NewPattern(expr string) (*Pattern, error) {
