@@ -258,10 +258,16 @@ func isIDKey(name string) bool {
 	return len(name) > 2 && (strings.HasSuffix(name, "Id") || strings.HasSuffix(name, "ID"))
 }
 
-// isEpoch: a number of seconds or milliseconds since 1970 between the
-// years 2000 and 2100 (946684800 and 4102444800 seconds).
+// isEpoch: a number of seconds, milliseconds, microseconds (the journal's
+// timestamps) or nanoseconds since 1970 between the years 2000 and 2100
+// (946684800 and 4102444800 seconds).
 func isEpoch(x float64) bool {
-	return x >= 946684800 && x < 4102444800 || x >= 946684800e3 && x < 4102444800e3
+	for _, unit := range []float64{1, 1e3, 1e6, 1e9} { // seconds to nanoseconds
+		if x >= 946684800*unit && x < 4102444800*unit {
+			return true
+		}
+	}
+	return false
 }
 
 // Apply appends the companion fields to rec.

@@ -261,3 +261,26 @@ func TestNoTemplateForInnerTimes(t *testing.T) {
 		t.Errorf("companions %s, want note%s only", got, TemplateSuffix)
 	}
 }
+
+// TestNoBucketsForEpochs: numbers that are times since 1970 in seconds,
+// milliseconds, microseconds (a systemd journal's) or nanoseconds get no
+// log buckets, whatever their field's name; a latency does.
+func TestNoBucketsForEpochs(t *testing.T) {
+	units := map[string]int64{"s": 1, "ms": 1e3, "us": 1e6, "ns": 1e9}
+	var sample []*parse.Record
+	for i := int64(0); i < 300; i++ {
+		rec := &parse.Record{}
+		for name, u := range units {
+			rec.AddString("created_"+name, strconv.FormatInt((1773454269+i*37)*u+i%u, 10))
+		}
+		rec.AddString("latency_ms", strconv.FormatInt(3+i*i%977, 10))
+		sample = append(sample, rec)
+	}
+	var names []string
+	for _, c := range Choose(sample, Options{}).List() {
+		names = append(names, c.Name())
+	}
+	if got := strings.Join(names, ","); got != "latency_ms"+BucketSuffix {
+		t.Errorf("companions %s, want latency_ms%s only", got, BucketSuffix)
+	}
+}

@@ -9,7 +9,11 @@ import (
 // timeKeys are the field names tried first, in order, when looking for a
 // stream's timestamp. Only under these names is a bare number taken for an
 // epoch time: elsewhere a number is far more often a size or a count.
-var timeKeys = []string{"time", "ts", "timestamp", "@timestamp", "t", "datetime", "date"}
+//
+// __REALTIME_TIMESTAMP is systemd's journal's (journalctl -o json): the
+// time the journal received the entry, microseconds since 1970 as a
+// decimal string (systemd.journal-fields(7), from memory), on every entry.
+var timeKeys = []string{"time", "ts", "timestamp", "@timestamp", "t", "datetime", "date", "__REALTIME_TIMESTAMP"}
 
 // timeSearchRecords is how many records TimeFinder looks at for a
 // timestamp field before it concludes that the stream has none.

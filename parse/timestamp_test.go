@@ -35,6 +35,8 @@ func TestTimeFinderFormats(t *testing.T) {
 		{"epoch us", "ts", "482196050520000", "epoch", 482196050520000000},
 		{"epoch ns", "ts", "482196050520000000", "epoch", 482196050520000000},
 		{"epoch ms fraction", "time", "482196050520.5", "epoch", 482196050520500000},
+		// systemd's journal (journalctl -o json): microseconds as a string.
+		{"journal", "__REALTIME_TIMESTAMP", "482196050520000", "epoch", 482196050520000000},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
