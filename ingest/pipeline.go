@@ -26,7 +26,7 @@ import (
 // name. A format that joins lines (CRI partial lines) must not be listed.
 // A format that keeps what it learned (header) or was made with
 // (pattern) implements parse.Cloner, and each worker parses with a clone.
-var parallelFormats = map[string]bool{"json": true, "logfmt": true, "klog": true,
+var parallelFormats = map[string]bool{"json": true, "logfmt": true, "klog": true, "envoy": true,
 	"access": true, "rfc3164": true, "rfc5424": true, "docker": true, "prefixed": true}
 
 // parallelFormat says whether the pipeline's workers can parse f.

@@ -324,6 +324,10 @@ func TestPipelineEqualsSequentialFormats(t *testing.T) {
 			return fmt.Sprintf("2026-03-14T02:%02d:%02d.%06d+00:00 router[web.%d]: at=info path=%s status=%d", i/60%60, i%60, i, i%3, paths[i%3], []int{200, 200, 503}[i%3])
 		},
 	}
+	gen["envoy"] = func(i int) string {
+		return fmt.Sprintf(`[2026-03-14T02:%02d:%02d.%03dZ] "%s %s HTTP/1.1" %d - 0 %d %d %d "-" "probe/%d" "req-%06d" "quay.example" "10.0.1.%d:8080"`,
+			i/60%60, i%60, i%1000, methods[i%3], paths[i%3], []int{200, 200, 503}[i%3], 100+i%900, i%90, i%80, i%5, i, i%4)
+	}
 	hdfs, _ := labelled.Generate("hdfs", n, 3)
 	gen["header"] = func(i int) string { return hdfs[i] }
 	gen["pattern"] = func(i int) string { return fmt.Sprintf("%s %s %d", methods[i%3], paths[i%3], i%7) }

@@ -37,6 +37,11 @@ func FuzzDocker(f *testing.F) {
 	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
 }
 
+func FuzzEnvoy(f *testing.F) {
+	p := &Envoy{}
+	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
+}
+
 func FuzzKlog(f *testing.F) {
 	p := &Klog{}
 	f.Fuzz(func(t *testing.T, line []byte) { fuzzParse(t, p, line) })
