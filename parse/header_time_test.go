@@ -50,3 +50,46 @@ func TestHeadTimeFastPath(t *testing.T) {
 		}
 	}
 }
+
+// TestAccessTimeFastPath: a TimeFinder reading a stream of access-log
+// stamps (with and without brackets, the zone changing now and then,
+// times moving across minutes and the year's end, some with a fraction or
+// a leap second) gives, value by value, the time parseAccess gives.
+func TestAccessTimeFastPath(t *testing.T) {
+	rnd := rand.New(rand.NewPCG(5, 6))
+	for _, bracket := range []bool{true, false} {
+		tf := TimeFinder{}
+		at := time.Date(2025, 12, 31, 23, 57, 0, 0, time.UTC)
+		zone := time.FixedZone("", -7*3600)
+		n := 0
+		for i := 0; i < 3000; i++ {
+			at = at.Add(time.Duration(rnd.IntN(4000)) * time.Millisecond)
+			if rnd.IntN(200) == 0 {
+				zone = time.FixedZone("", (rnd.IntN(27)-12)*3600)
+			}
+			v := at.In(zone).Format("02/Jan/2006:15:04:05 -0700")
+			switch rnd.IntN(50) {
+			case 0:
+				v = v[:20] + ".5" + v[20:] // a fraction: the slow way
+			case 1:
+				v = v[:18] + "60" + v[20:] // a leap second: refused both ways
+			}
+			if bracket {
+				v = "[" + v + "]"
+			}
+			want, wok := parseAccess(v, time.Time{})
+			var rec Record
+			rec.AddString("time", v)
+			got, ok := tf.Find(&rec)
+			if ok != wok || got != want {
+				t.Fatalf("%q: %v %v, parseAccess %v %v", v, time.Unix(0, got).UTC(), ok, time.Unix(0, want).UTC(), wok)
+			}
+			if ok {
+				n++
+			}
+		}
+		if n < 2800 || tf.Format() != "access" {
+			t.Errorf("bracket %v: %d read, layout %s", bracket, n, tf.Format())
+		}
+	}
+}
