@@ -1,7 +1,6 @@
 package parse
 
 import (
-	"bytes"
 	"strconv"
 	"strings"
 	"time"
@@ -63,9 +62,8 @@ type TimeFinder struct {
 	minute minuteCache // for the rfc3339 layout
 	// headForm is the header form (headTimes) that read the last time,
 	// tried first; the zero TimeFinder tries form 0 first, as before.
-	headForm  int
-	headMin   headMinute
-	accessMin accessMinute
+	headForm int
+	memo     minuteMemo // for the access and header layouts
 }
 
 // timeLayout is one timestamp format.
@@ -220,22 +218,22 @@ func (tf *TimeFinder) Find(rec *Record) (int64, bool) {
 				return t, true
 			}
 		} else if tf.layout == accessLayout {
-			if t, ok := tf.accessMin.read(v); ok {
+			if t, ok := tf.memo.read(v, cutAccess); ok {
 				return t, true
 			}
 			t, ok := parseAccess(string(v), tf.ref)
 			if ok {
-				tf.accessMin.learn(v, t)
+				tf.memo.learn(v, t, cutAccess)
 			}
 			return t, ok
 		} else if tf.layout == headerLayout {
-			if t, ok := tf.headMin.read(v); ok {
+			if t, ok := tf.memo.read(v, cutHeadTime); ok {
 				return t, true
 			}
 			t, form, ok := parseHeadTimeFrom(string(v), tf.ref, tf.headForm)
 			if ok {
 				tf.headForm = form
-				tf.headMin.learn(v, t)
+				tf.memo.learn(v, t, cutHeadTime)
 			}
 			return t, ok
 		}
@@ -287,43 +285,4 @@ func IsTimeKey(name string) bool {
 		}
 	}
 	return false
-}
-
-// accessMinute remembers, for the last access stamp read by time.Parse
-// ("[10/Oct/2000:13:55:36 -0700]"), its text before the seconds and after
-// them (the zone), and the time of that minute: the next stamps mostly
-// share both, and are then that time plus their seconds (time.Parse was a
-// tenth of an access log's CPU).
-type accessMinute struct {
-	prefix, suffix string
-	base           int64
-}
-
-// splitAccess cuts an access stamp at its seconds: the text before, the
-// seconds, and the text after (" -0700", " -0700]"). A stamp with a
-// fraction after its seconds is not cut.
-func splitAccess(v []byte) (prefix, suffix []byte, sec int64, ok bool) {
-	i := bytes.IndexByte(v, ' ')
-	if i < 3 || v[i-3] != ':' || !isDigit(v[i-2]) || !isDigit(v[i-1]) {
-		return nil, nil, 0, false
-	}
-	sec = int64(v[i-2]-'0')*10 + int64(v[i-1]-'0')
-	if sec > 59 {
-		return nil, nil, 0, false
-	}
-	return v[:i-2], v[i:], sec, true
-}
-
-func (c *accessMinute) read(v []byte) (int64, bool) {
-	p, s, sec, ok := splitAccess(v)
-	if !ok || c.prefix == "" || string(p) != c.prefix || string(s) != c.suffix {
-		return 0, false
-	}
-	return c.base + sec*1e9, true
-}
-
-func (c *accessMinute) learn(v []byte, t int64) {
-	if p, s, sec, ok := splitAccess(v); ok {
-		c.prefix, c.suffix, c.base = string(p), string(s), t-sec*1e9
-	}
 }
