@@ -28,10 +28,18 @@ func (in *inner) klogLine(msg []byte) bool {
 	return in.klog.Parse(msg, &in.scratch) == nil
 }
 
-// add appends the fields of msg to rec: the fields of msg read as JSON or
-// logfmt if it is either, else one field key=msg. Keys equal to one of
-// outer get innerPrefix. It reports whether msg was structured.
+// add appends the fields of msg to rec: the fields of msg read as JSON,
+// klog or logfmt if it is one of those (read), else one field key=msg.
+// Keys equal to one of outer get innerPrefix. It reports whether msg was
+// structured.
 func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool {
+	return in.copyOut(rec, key, msg, in.read(msg), outer)
+}
+
+// read reads msg into in.scratch as JSON, klog or logfmt, and says
+// whether it is one of those, with a field at least; copyOut then adds
+// what it read.
+func (in *inner) read(msg []byte) bool {
 	in.scratch.Reset()
 	ok := false
 	switch {
@@ -40,19 +48,10 @@ func (in *inner) add(rec *Record, key string, msg []byte, outer ...string) bool 
 	case in.klogLine(msg):
 		ok = true
 	case in.logfmt.Sniff(msg) >= 0.5:
-		in.scratch.Reset()
+		in.scratch.Reset() // a klog line that failed may have left fields
 		ok = in.logfmt.Parse(msg, &in.scratch) == nil
 	}
-	return in.copyOut(rec, key, msg, ok, outer)
-}
-
-// structured says whether add would read msg as JSON or logfmt.
-func (in *inner) structured(msg []byte) bool {
-	if len(msg) >= 2 && msg[0] == '{' {
-		in.scratch.Reset()
-		return in.json.Parse(msg, &in.scratch) == nil && in.scratch.Len() > 0
-	}
-	return in.klogLine(msg) || in.logfmt.Sniff(msg) >= 0.5
+	return ok && in.scratch.Len() > 0
 }
 
 // addPairs is add for msg known to be key=value pairs (klog's structured

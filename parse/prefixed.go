@@ -71,27 +71,28 @@ func (p *Prefixed) parse(line []byte, rec *Record) (structured bool, err error) 
 		lv = lv[:n-1]
 	}
 	app, proc, tagged := sourceTag(word)
+	leveled := isLevel(lv)
 	switch {
-	case isLevel(lv):
+	case leveled || tagged:
 		rest = after
-	case tagged:
-		rest = after
-	case !p.inner.structured(rest):
+		for len(rest) > 0 && rest[0] == ' ' {
+			rest = rest[1:]
+		}
+	case !p.inner.read(rest):
 		return false, reject("no level or source after the timestamp, and no JSON or logfmt")
-	}
-	for len(rest) > 0 && rest[0] == ' ' {
-		rest = rest[1:]
+	default:
+		// The body, read once, is in p.inner's scratch.
+		rec.AddKV("time", ts)
+		return p.inner.copyOut(rec, "msg", rest, true, []string{"time"}), nil
 	}
 	rec.AddKV("time", ts)
-	outer := []string{"time"}
-	switch {
-	case isLevel(lv):
+	outer := []string{"time", "app", "proc"}
+	if leveled {
 		rec.AddKV("level", lv)
 		outer = []string{"time", "level"}
-	case tagged:
+	} else {
 		rec.AddKV("app", app)
 		rec.AddKV("proc", proc)
-		outer = []string{"time", "app", "proc"}
 	}
 	if len(rest) == 0 {
 		return false, nil
