@@ -306,9 +306,12 @@ const absentValue = "\x00absent"
 func newPricer(s *model.Snapshot) *pricer {
 	p := &pricer{}
 	tk := s.Input.TimeField
-	parent := s.SurpriseForest(func(i int) bool { return s.Fields[i].Name != tk })
+	// The stream's time field is not priced (no model Kind says
+	// "timestamp": the field is marked by FieldStats.Timestamp).
+	priced := func(i int) bool { return s.Fields[i].Name != tk && !s.Fields[i].Timestamp }
+	parent := s.SurpriseForest(priced)
 	for i, f := range s.Fields {
-		if f.Kind == model.Identifier || f.Kind == model.Constant || f.Name == tk || f.Kind == "timestamp" {
+		if f.Kind == model.Identifier || f.Kind == model.Constant || !priced(i) {
 			continue
 		}
 		pf := pricedField{name: f.Name, count: map[string]float64{}}
